@@ -1,0 +1,249 @@
+//! Built-in acid–base systems (const data). Every constant names its source beside it.
+//!
+//! Tags used below: "[checked]" = the value was read in the named source (or an independent
+//! public transcription of it); "(from memory)" = the value is quoted from memory of the
+//! named source and no test relies on it alone; "[calc]" = computed here from a checked
+//! formula. All values are thermodynamic (I → 0) at 0.1 MPa, molal scale.
+//!
+//! To add a system, see DEVELOPERS.md ("Adding a catalogue entry").
+
+use super::system::{AcidBaseSystem, LogK};
+
+const NONE: LogK = LogK::analytic(0.0, 0.0, 0.0, 0.0, 0.0);
+
+/// Carbonate: CO2(aq) (incl. H2CO3) / HCO3⁻ / CO3²⁻.
+/// Both steps: Plummer & Busenberg (1982), Geochim. Cosmochim. Acta 46, 1011 [checked]:
+/// log K1 = −356.3094 − 0.06091964·T + 21834.37/T + 126.8339·log10 T − 1684915/T²;
+/// log K2 = −107.8871 − 0.03252849·T + 5151.79/T + 38.92561·log10 T − 563713.9/T².
+/// pK1 = 6.352, pK2 = 10.329 at 25 °C [calc].
+pub const CARBONATE: AcidBaseSystem = AcidBaseSystem {
+    key: "carbonate",
+    forms: ["CO2", "HCO3-", "CO3^2-", ""],
+    steps: 2,
+    log_k: [
+        LogK::analytic(-356.309_4, 21_834.37, -0.060_919_64, 126.833_9, -1_684_915.0),
+        LogK::analytic(-107.887_1, 5151.79, -0.032_528_49, 38.925_61, -563_713.9),
+        NONE,
+    ],
+    charge_protonated: 0,
+    parent_acid: "H2CO3",
+};
+
+/// Phosphate: H3PO4 / H2PO4⁻ / HPO4²⁻ / PO4³⁻. pKa and ΔH° (kJ/mol): 2.16; −8.0 · 7.20; 4.2 ·
+/// 12.35; 14.7 — Benjamin, "Water Chemistry", 2nd ed. (2015), table of acidity constants
+/// [checked, via a public transcription]. Van 't Hoff temperature dependence.
+pub const PHOSPHATE: AcidBaseSystem = AcidBaseSystem {
+    key: "phosphate",
+    forms: ["H3PO4", "H2PO4-", "HPO4^2-", "PO4^3-"],
+    steps: 3,
+    log_k: [LogK::vant_hoff(2.16, -8.0), LogK::vant_hoff(7.20, 4.2), LogK::vant_hoff(12.35, 14.7)],
+    charge_protonated: 0,
+    parent_acid: "H3PO4",
+};
+
+/// Acetate: CH3COOH / CH3COO⁻. pKa 4.756, ΔH° −0.41 kJ/mol — Goldberg, Kishore & Lennen (2002),
+/// J. Phys. Chem. Ref. Data 31, 231 (from memory; pKa 4.756 also in the CRC Handbook table
+/// "Dissociation constants of organic acids", from memory).
+pub const ACETATE: AcidBaseSystem = AcidBaseSystem {
+    key: "acetate",
+    forms: ["CH3COOH", "CH3COO-", "", ""],
+    steps: 1,
+    log_k: [LogK::vant_hoff(4.756, -0.41), NONE, NONE],
+    charge_protonated: 0,
+    parent_acid: "CH3COOH",
+};
+
+/// Ammonium: NH4⁺ / NH3. pKa 9.245 [calc from Millero's lnK(T), checked formula], ΔH° 52.0
+/// kJ/mol (Goldberg et al. 2002 give 51.95, from memory).
+pub const AMMONIUM: AcidBaseSystem = AcidBaseSystem {
+    key: "ammonium",
+    forms: ["NH4+", "NH3", "", ""],
+    steps: 1,
+    log_k: [LogK::vant_hoff(9.245, 52.0), NONE, NONE],
+    charge_protonated: 1,
+    parent_acid: "",
+};
+
+/// Borate: B(OH)3 / B(OH)4⁻. pKa 9.236, ΔH° 14.0 kJ/mol [calc from Millero's formula, checked
+/// formula]; Goldberg et al. 2002 give 9.237; 13.8 (from memory).
+pub const BORATE: AcidBaseSystem = AcidBaseSystem {
+    key: "borate",
+    forms: ["B(OH)3", "B(OH)4-", "", ""],
+    steps: 1,
+    log_k: [LogK::vant_hoff(9.236, 14.0), NONE, NONE],
+    charge_protonated: 0,
+    parent_acid: "H3BO3",
+};
+
+/// Sulfate's second proton: HSO4⁻ / SO4²⁻ (the first proton of H2SO4 is strong). pKa 1.99,
+/// ΔH° −21.9 kJ/mol — Benjamin, "Water Chemistry", 2nd ed. [checked].
+pub const SULFATE: AcidBaseSystem = AcidBaseSystem {
+    key: "sulfate",
+    forms: ["HSO4-", "SO4^2-", "", ""],
+    steps: 1,
+    log_k: [LogK::vant_hoff(1.99, -21.9), NONE, NONE],
+    charge_protonated: -1,
+    parent_acid: "H2SO4",
+};
+
+/// Hypochlorite: HOCl / OCl⁻. Morris (1966), J. Phys. Chem. 70, 3798: pKa = 3000/T − 10.0686 +
+/// 0.0253·T [checked]; 7.537 at 25 °C [calc].
+pub const HYPOCHLORITE: AcidBaseSystem = AcidBaseSystem {
+    key: "hypochlorite",
+    forms: ["HOCl", "OCl-", "", ""],
+    steps: 1,
+    log_k: [LogK::analytic(10.0686, -3000.0, -0.0253, 0.0, 0.0), NONE, NONE],
+    charge_protonated: 0,
+    parent_acid: "HOCl",
+};
+
+/// Fluoride: HF / F⁻. pKa 3.17 [calc from Millero's formula, checked formula], ΔH° −13 kJ/mol
+/// (from memory, NBS tables).
+pub const FLUORIDE: AcidBaseSystem = AcidBaseSystem {
+    key: "fluoride",
+    forms: ["HF", "F-", "", ""],
+    steps: 1,
+    log_k: [LogK::vant_hoff(3.17, -13.0), NONE, NONE],
+    charge_protonated: 0,
+    parent_acid: "HF",
+};
+
+/// Citrate: H3Cit / H2Cit⁻ / HCit²⁻ / Cit³⁻. pKa; ΔH° (kJ/mol): 3.128; 4.07 · 4.761; 2.23 ·
+/// 6.396; −3.38 — Goldberg et al. (2002) (from memory).
+pub const CITRATE: AcidBaseSystem = AcidBaseSystem {
+    key: "citrate",
+    forms: ["H3Cit", "H2Cit-", "HCit^2-", "Cit^3-"],
+    steps: 3,
+    log_k: [LogK::vant_hoff(3.128, 4.07), LogK::vant_hoff(4.761, 2.23), LogK::vant_hoff(6.396, -3.38)],
+    charge_protonated: 0,
+    parent_acid: "C6H8O7",
+};
+
+/// Formate: HCOOH / HCOO⁻. pKa 3.75 (CRC Handbook, from memory), ΔH° ≈ −0.1 kJ/mol (NBS
+/// tables, from memory).
+pub const FORMATE: AcidBaseSystem = AcidBaseSystem {
+    key: "formate",
+    forms: ["HCOOH", "HCOO-", "", ""],
+    steps: 1,
+    log_k: [LogK::vant_hoff(3.75, -0.1), NONE, NONE],
+    charge_protonated: 0,
+    parent_acid: "HCOOH",
+};
+
+/// Oxalate: H2C2O4 / HC2O4⁻ / C2O4²⁻. pKa; ΔH° (kJ/mol): 1.25; 0 · 4.27; −6.7 (CRC / Martell &
+/// Smith / NBS tables, from memory).
+pub const OXALATE: AcidBaseSystem = AcidBaseSystem {
+    key: "oxalate",
+    forms: ["H2C2O4", "HC2O4-", "C2O4^2-", ""],
+    steps: 2,
+    log_k: [LogK::vant_hoff(1.25, 0.0), LogK::vant_hoff(4.27, -6.7), NONE],
+    charge_protonated: 0,
+    parent_acid: "H2C2O4",
+};
+
+/// Sulfide, first step only: H2S / HS⁻ (the second pKa, 17–19, is negligible in water).
+/// pKa 6.98 [calc from Millero's formula, checked formula], ΔH° 22 kJ/mol (NBS tables, from
+/// memory).
+pub const SULFIDE: AcidBaseSystem = AcidBaseSystem {
+    key: "sulfide",
+    forms: ["H2S", "HS-", "", ""],
+    steps: 1,
+    log_k: [LogK::vant_hoff(6.98, 22.0), NONE, NONE],
+    charge_protonated: 0,
+    parent_acid: "H2S",
+};
+
+/// Silicate, first step only: Si(OH)4 / SiO(OH)3⁻. Millero (1995), Geochim. Cosmochim. Acta 59,
+/// 661: ln K = −8904.2/T + 117.385 − 19.334·ln T [checked], rewritten in log10 form
+/// (a = 117.385/ln10, b = −8904.2/ln10, d = −19.334); pKa 9.83 at 25 °C [calc].
+pub const SILICATE: AcidBaseSystem = AcidBaseSystem {
+    key: "silicate",
+    forms: ["Si(OH)4", "SiO(OH)3-", "", ""],
+    steps: 1,
+    log_k: [
+        LogK::analytic(117.385 / core::f64::consts::LN_10, -8904.2 / core::f64::consts::LN_10, 0.0, -19.334, 0.0),
+        NONE,
+        NONE,
+    ],
+    charge_protonated: 0,
+    parent_acid: "H4SiO4",
+};
+
+/// Phthalate: H2Phth / HPhth⁻ / Phth²⁻ (for potassium hydrogen phthalate). pKa 2.950 and
+/// 5.408 at 25 °C with ΔH° −2.7 and −2.2 kJ/mol (Hamer, Pinching & Acree 1945/1946 and
+/// Goldberg et al. 2002, from memory).
+pub const PHTHALATE: AcidBaseSystem = AcidBaseSystem {
+    key: "phthalate",
+    forms: ["H2Phth", "HPhth-", "Phth^2-", ""],
+    steps: 2,
+    log_k: [LogK::vant_hoff(2.950, -2.7), LogK::vant_hoff(5.408, -2.2), NONE],
+    charge_protonated: 0,
+    parent_acid: "H2C8H4O4",
+};
+
+/// Every built-in system.
+pub const ALL: [&AcidBaseSystem; 14] = [
+    &CARBONATE,
+    &PHOSPHATE,
+    &ACETATE,
+    &AMMONIUM,
+    &BORATE,
+    &SULFATE,
+    &HYPOCHLORITE,
+    &FLUORIDE,
+    &CITRATE,
+    &FORMATE,
+    &OXALATE,
+    &SULFIDE,
+    &SILICATE,
+    &PHTHALATE,
+];
+
+/// Looks a built-in system up by its key ("carbonate", "phosphate" …).
+pub fn by_key(key: &str) -> Option<&'static AcidBaseSystem> {
+    ALL.iter().copied().find(|s| s.key == key)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn every_entry_is_valid_and_keys_are_unique() {
+        for (i, s) in ALL.iter().enumerate() {
+            assert!(s.validate().is_ok(), "{}", s.key);
+            for t in ALL.iter().skip(i + 1) {
+                assert_ne!(s.key, t.key);
+            }
+            // pKa ascend within a system at 25 °C.
+            let pk: [Option<f64>; 3] = [1, 2, 3].map(|j| s.pka(j, 298.15));
+            for w in pk.windows(2) {
+                if let [Some(a), Some(b)] = w {
+                    assert!(a < b, "{}: {a} !< {b}", s.key);
+                }
+            }
+        }
+    }
+
+    #[test]
+    fn carbonate_matches_plummer_busenberg_table() {
+        // pK1, pK2 computed from the Plummer & Busenberg (1982) fits (shared REFERENCE-VALUES §2
+        // table, calc from the checked formula) at 0, 25, 50 °C.
+        for (t, pk1, pk2) in [(0.0, 6.579, 10.629), (25.0, 6.352, 10.329), (50.0, 6.286, 10.174)] {
+            let tk = 273.15 + t;
+            let got1: f64 = CARBONATE.pka(1, tk).unwrap();
+            let got2: f64 = CARBONATE.pka(2, tk).unwrap();
+            assert!((got1 - pk1).abs() < 0.001 && (got2 - pk2).abs() < 0.001, "{t}: {got1} {got2}");
+        }
+    }
+
+    #[test]
+    fn analytic_fits_at_25c() {
+        // Morris (1966) HOCl formula: 7.537 at 25 °C, 7.825 at 0 °C [calc]; Millero silicate 9.83.
+        assert!((HYPOCHLORITE.pka(1, 298.15_f64).unwrap() - 7.537).abs() < 0.001);
+        assert!((HYPOCHLORITE.pka(1, 273.15_f64).unwrap() - 7.825).abs() < 0.001);
+        assert!((SILICATE.pka(1, 298.15_f64).unwrap() - 9.83).abs() < 0.01);
+        assert_eq!(by_key("borate").map(|s| s.key), Some("borate"));
+        assert!(by_key("unobtainium").is_none());
+    }
+}

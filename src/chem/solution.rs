@@ -1,0 +1,357 @@
+//! A solution: fixed-capacity composition (reaction invariants), temperature and activity mode.
+
+use heapless::Vec;
+
+use super::activity::{self, Activity};
+use super::substance::{self, Part, Substance, UnknownSubstance};
+use super::system::{AcidBaseSystem, MAX_STEPS, SystemError};
+use super::water;
+use crate::real::Real;
+use crate::units::{Celsius, TemperatureOutOfRange};
+
+/// Largest total (mol/L) or strong-ion amount (eq/L) a solution accepts. Above it the
+/// dilute-solution chemistry here means nothing (and the solver's pH bracket may not hold).
+pub const MAX_TOTAL_MOL_PER_L: f64 = 20.0;
+
+/// Why a composition change was refused. The solution is left unchanged.
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+#[non_exhaustive]
+pub enum CompositionError {
+    /// An amount was NaN or infinite.
+    NonFinite,
+    /// An amount was negative (mol/L).
+    Negative {
+        /// The rejected amount, mol/L.
+        mol_per_l: f64,
+    },
+    /// An amount or resulting total exceeds [`MAX_TOTAL_MOL_PER_L`].
+    TooConcentrated {
+        /// The rejected total, mol/L.
+        mol_per_l: f64,
+    },
+    /// The solution already holds `capacity` distinct systems.
+    CapacityExceeded {
+        /// The solution's capacity (its const generic `N`).
+        capacity: usize,
+    },
+    /// The formula or name is not in the substance table.
+    UnknownSubstance(UnknownSubstance),
+    /// The system description is invalid.
+    InvalidSystem(SystemError),
+    /// The temperature is outside 0–100 °C.
+    Temperature(TemperatureOutOfRange),
+    /// Mixing flows must be finite, ≥ 0 and not both zero (L/h).
+    InvalidFlow,
+}
+
+impl core::fmt::Display for CompositionError {
+    fn fmt(&self, f: &mut core::fmt::Formatter<'_>) -> core::fmt::Result {
+        match self {
+            Self::NonFinite => f.write_str("amount is not a finite number"),
+            Self::Negative { mol_per_l } => write!(f, "amount {mol_per_l} mol/L is negative"),
+            Self::TooConcentrated { mol_per_l } => {
+                write!(f, "total {mol_per_l} mol/L exceeds the {MAX_TOTAL_MOL_PER_L} mol/L limit")
+            }
+            Self::CapacityExceeded { capacity } => {
+                write!(f, "solution capacity of {capacity} acid-base systems exceeded")
+            }
+            Self::UnknownSubstance(e) => core::fmt::Display::fmt(e, f),
+            Self::InvalidSystem(e) => core::fmt::Display::fmt(e, f),
+            Self::Temperature(e) => core::fmt::Display::fmt(e, f),
+            Self::InvalidFlow => f.write_str("flows must be finite, non-negative and not both zero"),
+        }
+    }
+}
+
+impl core::error::Error for CompositionError {}
+
+impl From<UnknownSubstance> for CompositionError {
+    fn from(e: UnknownSubstance) -> Self {
+        Self::UnknownSubstance(e)
+    }
+}
+impl From<TemperatureOutOfRange> for CompositionError {
+    fn from(e: TemperatureOutOfRange) -> Self {
+        Self::Temperature(e)
+    }
+}
+
+/// One acid–base system in a solution with its total concentration.
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct Component<R: Real> {
+    /// The system.
+    pub system: AcidBaseSystem,
+    /// Total concentration of all its forms, mol/L (0–[`MAX_TOTAL_MOL_PER_L`]).
+    pub total_mol_per_l: R,
+    /// pKa of each step at the solution's temperature (cached; entries past `steps` unused).
+    pub(crate) pk: [R; MAX_STEPS],
+}
+
+/// A solution of up to `N` acid–base systems plus strong ions, at a temperature.
+///
+/// The state is the reaction invariants: system totals (mol/L) and the net strong-ion charge
+/// (eq/L, strong cations minus strong anions). Mixing adds them flow-weighted. Strong ions
+/// also contribute ½·Σc·z² to the ionic strength, which is tracked alongside.
+///
+/// Memory: `N` × (about 200 bytes) plus a few words; no heap.
+#[derive(Clone, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct Solution<R: Real, const N: usize> {
+    components: Vec<Component<R>, N>,
+    strong_charge_eq_per_l: R,
+    strong_ionic_strength_mol_per_l: R,
+    temperature: Celsius<R>,
+    activity: Activity,
+    pkw: R,
+    debye_huckel_a: R,
+}
+
+fn check_amount<R: Real>(v: R) -> Result<R, CompositionError> {
+    let x = v.to_f64();
+    if !x.is_finite() {
+        Err(CompositionError::NonFinite)
+    } else if x < 0.0 {
+        Err(CompositionError::Negative { mol_per_l: x })
+    } else if x > MAX_TOTAL_MOL_PER_L {
+        Err(CompositionError::TooConcentrated { mol_per_l: x })
+    } else {
+        Ok(v)
+    }
+}
+
+impl<R: Real, const N: usize> Solution<R, N> {
+    /// Pure water at `temperature` with the given activity mode.
+    pub fn new(temperature: Celsius<R>, activity: Activity) -> Self {
+        const { assert!(N > 0, "a solution needs room for at least one system") };
+        Self {
+            components: Vec::new(),
+            strong_charge_eq_per_l: R::ZERO,
+            strong_ionic_strength_mol_per_l: R::ZERO,
+            temperature,
+            activity,
+            pkw: water::pkw(temperature),
+            debye_huckel_a: activity::debye_huckel_a(temperature),
+        }
+    }
+
+    /// Pure water at 25 °C with Davies activities.
+    pub fn standard() -> Self {
+        Self::new(Celsius::standard(), Activity::Davies)
+    }
+
+    /// The systems present, in the order they were first added.
+    pub fn components(&self) -> &[Component<R>] {
+        &self.components
+    }
+
+    /// Net strong-ion charge, eq/L (strong cations minus strong anions).
+    pub fn strong_charge_eq_per_l(&self) -> R {
+        self.strong_charge_eq_per_l
+    }
+
+    /// Strong ions' contribution ½·Σc·z² to the ionic strength, mol/L.
+    pub fn strong_ionic_strength_mol_per_l(&self) -> R {
+        self.strong_ionic_strength_mol_per_l
+    }
+
+    /// Temperature.
+    pub fn temperature(&self) -> Celsius<R> {
+        self.temperature
+    }
+
+    /// Activity mode.
+    pub fn activity(&self) -> Activity {
+        self.activity
+    }
+
+    /// Changes the activity mode.
+    pub fn set_activity(&mut self, activity: Activity) {
+        self.activity = activity;
+    }
+
+    /// −log10 Kw at the solution's temperature.
+    pub fn pkw(&self) -> R {
+        self.pkw
+    }
+
+    /// Debye–Hückel A at the solution's temperature.
+    pub fn debye_huckel_a(&self) -> R {
+        self.debye_huckel_a
+    }
+
+    /// Total of the system with `key`, mol/L (0 when absent).
+    pub fn total_of(&self, key: &str) -> R {
+        self.components.iter().find(|c| c.system.key == key).map_or(R::ZERO, |c| c.total_mol_per_l)
+    }
+
+    /// Changes the temperature and recomputes every temperature-dependent constant.
+    pub fn set_temperature(&mut self, temperature: Celsius<R>) {
+        self.temperature = temperature;
+        self.pkw = water::pkw(temperature);
+        self.debye_huckel_a = activity::debye_huckel_a(temperature);
+        let tk = temperature.kelvin();
+        for c in &mut self.components {
+            c.pk = pk_at(&c.system, tk);
+        }
+    }
+
+    /// Adds `total_mol_per_l` of an acid–base system's total (merged with a system of the
+    /// same key). Does not change the strong-ion charge: adding the fully protonated form.
+    pub fn add_system(&mut self, system: &AcidBaseSystem, total_mol_per_l: R) -> Result<(), CompositionError> {
+        let amount = check_amount(total_mol_per_l)?;
+        system.validate().map_err(CompositionError::InvalidSystem)?;
+        if let Some(c) = self.components.iter_mut().find(|c| c.system.key == system.key) {
+            c.total_mol_per_l = check_amount(c.total_mol_per_l + amount)?;
+            return Ok(());
+        }
+        let component =
+            Component { system: *system, total_mol_per_l: amount, pk: pk_at(system, self.temperature.kelvin()) };
+        self.components.push(component).map_err(|_| CompositionError::CapacityExceeded { capacity: N })
+    }
+
+    /// Adds `mol_per_l` of strong ions of charge `charge` (e.g. +1 for Na⁺, −1 for Cl⁻).
+    pub fn add_strong_ion(&mut self, charge: i8, mol_per_l: R) -> Result<(), CompositionError> {
+        let amount = check_amount(mol_per_l)?;
+        let z = R::from_i32(i32::from(charge));
+        let q = self.strong_charge_eq_per_l + z * amount;
+        let i = self.strong_ionic_strength_mol_per_l + R::from_f64(0.5) * z * z * amount;
+        if q.abs().to_f64() > MAX_TOTAL_MOL_PER_L || i.to_f64() > MAX_TOTAL_MOL_PER_L {
+            return Err(CompositionError::TooConcentrated { mol_per_l: q.to_f64() });
+        }
+        self.strong_charge_eq_per_l = q;
+        self.strong_ionic_strength_mol_per_l = i;
+        Ok(())
+    }
+
+    /// Dissolves `mol_per_l` of a substance. On error the solution is unchanged.
+    pub fn add_substance(&mut self, substance: &Substance, mol_per_l: R) -> Result<(), CompositionError> {
+        let amount = check_amount(mol_per_l)?;
+        let mut next = self.clone();
+        for part in substance.parts {
+            match *part {
+                Part::Strong(ion, count) => {
+                    next.add_strong_ion(ion.charge(), amount * R::from_i32(i32::from(count)))?
+                }
+                Part::System(system, count) => next.add_system(system, amount * R::from_i32(i32::from(count)))?,
+            }
+        }
+        *self = next;
+        Ok(())
+    }
+
+    /// Dissolves `mol_per_l` of the substance with this formula or name (see [`substance::find`]).
+    pub fn add_formula(&mut self, formula_or_name: &str, mol_per_l: R) -> Result<(), CompositionError> {
+        let s = substance::find(formula_or_name)?;
+        self.add_substance(s, mol_per_l)
+    }
+
+    /// Mixes `self` at `flow_self_l_per_h` with `other` at `flow_other_l_per_h`: totals and
+    /// strong ions are flow-weighted averages (reaction invariants are conserved). The result
+    /// takes `self`'s activity mode and the flow-weighted temperature (no heat of reaction).
+    pub fn mix<const M: usize>(
+        &self,
+        flow_self_l_per_h: R,
+        other: &Solution<R, M>,
+        flow_other_l_per_h: R,
+    ) -> Result<Self, CompositionError> {
+        let (a, b) = (flow_self_l_per_h.to_f64(), flow_other_l_per_h.to_f64());
+        if !(a.is_finite() && b.is_finite()) || a < 0.0 || b < 0.0 || a + b <= 0.0 {
+            return Err(CompositionError::InvalidFlow);
+        }
+        let total = flow_self_l_per_h + flow_other_l_per_h;
+        let (wa, wb) = (flow_self_l_per_h / total, flow_other_l_per_h / total);
+        let t = Celsius::new(self.temperature.celsius() * wa + other.temperature.celsius() * wb)?;
+        let mut out = Self::new(t, self.activity);
+        for c in &self.components {
+            out.add_system(&c.system, c.total_mol_per_l * wa)?;
+        }
+        for c in &other.components {
+            out.add_system(&c.system, c.total_mol_per_l * wb)?;
+        }
+        out.strong_charge_eq_per_l = self.strong_charge_eq_per_l * wa + other.strong_charge_eq_per_l * wb;
+        out.strong_ionic_strength_mol_per_l =
+            self.strong_ionic_strength_mol_per_l * wa + other.strong_ionic_strength_mol_per_l * wb;
+        Ok(out)
+    }
+
+    /// Cached pKa of step `step` (1-based) of component `index` at the solution's temperature.
+    pub fn component_pka(&self, index: usize, step: usize) -> Option<R> {
+        let c = self.components.get(index)?;
+        if step == 0 || step > c.system.step_count() {
+            return None;
+        }
+        c.pk.get(step - 1).copied()
+    }
+}
+
+fn pk_at<R: Real>(system: &AcidBaseSystem, kelvin: R) -> [R; MAX_STEPS] {
+    let mut out = [R::ZERO; MAX_STEPS];
+    for (o, k) in out.iter_mut().zip(system.log_k.iter()).take(system.step_count()) {
+        *o = k.pk(kelvin);
+    }
+    out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::chem::catalogue;
+
+    type Sol = Solution<f64, 4>;
+
+    #[test]
+    fn substances_map_to_totals_and_strong_charge() {
+        let mut s = Sol::standard();
+        s.add_formula("Na2HPO4", 0.01).unwrap();
+        s.add_formula("NaHCO3", 0.002).unwrap();
+        s.add_formula("HCl", 0.001).unwrap();
+        assert!((s.total_of("phosphate") - 0.01).abs() < 1e-15);
+        assert!((s.total_of("carbonate") - 0.002).abs() < 1e-15);
+        assert!((s.strong_charge_eq_per_l() - (0.02 + 0.002 - 0.001)).abs() < 1e-15);
+        // ½Σcz²: Na 0.022·1, Cl 0.001·1.
+        assert!((s.strong_ionic_strength_mol_per_l() - 0.5 * 0.023).abs() < 1e-15);
+    }
+
+    #[test]
+    fn errors_leave_the_solution_unchanged() {
+        let mut s: Solution<f64, 1> = Solution::standard();
+        s.add_formula("NaHCO3", 0.002).unwrap();
+        let before = s.clone();
+        assert_eq!(s.add_formula("Na2HPO4", 0.01), Err(CompositionError::CapacityExceeded { capacity: 1 }));
+        assert_eq!(s, before);
+        assert_eq!(s.add_formula("NaOH", -1.0), Err(CompositionError::Negative { mol_per_l: -1.0 }));
+        assert_eq!(s.add_formula("NaOH", f64::NAN), Err(CompositionError::NonFinite));
+        assert!(matches!(s.add_formula("Unobtainium", 1.0), Err(CompositionError::UnknownSubstance(_))));
+        assert!(matches!(s.add_formula("NaOH", 25.0), Err(CompositionError::TooConcentrated { .. })));
+        assert_eq!(s, before);
+    }
+
+    #[test]
+    fn mixing_conserves_totals() {
+        let mut a = Sol::standard();
+        a.add_formula("NaHCO3", 0.004).unwrap();
+        let mut b = Sol::standard();
+        b.add_formula("H3PO4", 0.01).unwrap();
+        b.add_formula("NaOH", 0.005).unwrap();
+        let m = a.mix(300.0, &b, 100.0).unwrap();
+        assert!((m.total_of("carbonate") - 0.003).abs() < 1e-15);
+        assert!((m.total_of("phosphate") - 0.0025).abs() < 1e-15);
+        assert!((m.strong_charge_eq_per_l() - (0.75 * 0.004 + 0.25 * 0.005)).abs() < 1e-15);
+        assert_eq!(a.mix(0.0, &b, 0.0), Err(CompositionError::InvalidFlow));
+        assert_eq!(a.mix(-1.0, &b, 1.0), Err(CompositionError::InvalidFlow));
+    }
+
+    #[test]
+    fn temperature_updates_cached_constants() {
+        let mut s = Sol::standard();
+        s.add_system(&catalogue::AMMONIUM, 0.001).unwrap();
+        let pk25 = s.component_pka(0, 1).unwrap();
+        s.set_temperature(Celsius::new(40.0).unwrap());
+        assert!(s.component_pka(0, 1).unwrap() < pk25 - 0.3);
+        assert!(s.pkw() < 13.6);
+        assert_eq!(s.component_pka(0, 2), None);
+        assert_eq!(s.component_pka(5, 1), None);
+    }
+}

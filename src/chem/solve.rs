@@ -1,0 +1,534 @@
+//! The pH solver: root of the charge balance by guarded Newton steps on pH.
+//!
+//! For a candidate pH x, the charge excess is
+//! f(x) = [H⁺] − [OH⁻] + Q_strong + Σ_s C_s·(z0_s − n̄_s(x)),
+//! where n̄_s is the mean number of protons system s has lost. f is strictly decreasing in x
+//! and f′(x) = −β(x), the buffer capacity (Van Slyke), so each evaluation gives the Newton
+//! step x + f/β and the buffer capacity at no extra cost.
+//!
+//! **Bounds.** The root is searched in [[`PH_MIN`], [`PH_MAX`]]; every evaluation shrinks
+//! that bracket. For the first B = ⌈log2((PH_MAX − PH_MIN)/tol)⌉ iterations the solver takes
+//! Newton steps, replaced by bisection (or a bounded walk while the root is bounded on one
+//! side only) whenever a step would leave the bracket or the iteration stops converging; after B iterations it only bisects, which reaches the
+//! tolerance within B more. One solve therefore takes at most 2·B iterations:
+//! [`max_ph_iterations`] (76 for `f64`, 42 for `f32`). With Davies activities the ionic strength is a fixed point over such
+//! solves, at most [`MAX_ACTIVITY_ITERATIONS`] of them, each warm-started from the last.
+//! Every loop in this file is bounded by one of these constants.
+
+use super::activity::{self, Activity, DAVIES_MAX_IONIC_STRENGTH};
+use super::solution::{Component, Solution};
+use super::system::MAX_STEPS;
+use crate::real::Real;
+
+/// Lowest pH the solver searches.
+pub const PH_MIN: f64 = -1.0;
+/// Highest pH the solver searches.
+pub const PH_MAX: f64 = 16.0;
+/// Step (pH units) the solver walks towards a root bounded on one side only.
+pub const EXPANSION_STEP_PH: f64 = 2.0;
+/// Most ionic-strength fixed-point rounds in Davies mode.
+pub const MAX_ACTIVITY_ITERATIONS: u32 = 16;
+
+/// Worst-case iterations of one inner solve for real type `R`: 2·[`bisection_iterations`]
+/// (76 for `f64`, 42 for `f32`).
+pub fn max_ph_iterations<R: Real>() -> u32 {
+    2 * bisection_iterations::<R>()
+}
+
+/// Iterations plain bisection needs to shrink the bracket below `R::PH_TOLERANCE`:
+/// ⌈log2((PH_MAX − PH_MIN)/tol)⌉ (38 for `f64`, 21 for `f32`).
+pub fn bisection_iterations<R: Real>() -> u32 {
+    let ratio = (PH_MAX - PH_MIN) / R::PH_TOLERANCE.to_f64();
+    let mut n = 0;
+    let mut w = 1.0_f64;
+    // Bounded: ratio ≤ 17/1e-10 < 2^38, so at most 38 rounds for the tolerances used here;
+    // capped at 64 for any tolerance.
+    while w < ratio && n < 64 {
+        w *= 2.0;
+        n += 1;
+    }
+    n
+}
+
+/// Why a solve failed.
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+#[non_exhaustive]
+pub enum SolveError {
+    /// An input (total, strong charge or warm start) is NaN or infinite.
+    NonFinite,
+    /// No pH in [`PH_MIN`, `PH_MAX`] balances the charges (absurd composition).
+    NoRoot {
+        /// Charge excess at `PH_MIN`, eq/L (must be > 0 for a root).
+        excess_at_min_eq_per_l: f64,
+        /// Charge excess at `PH_MAX`, eq/L (must be < 0 for a root).
+        excess_at_max_eq_per_l: f64,
+    },
+    /// The iteration limit was reached (only with a caller-lowered limit, see [`SolverOptions`]).
+    IterationLimit {
+        /// Iterations spent.
+        iterations: u32,
+    },
+    /// Davies mode: the ionic strength exceeds [`DAVIES_MAX_IONIC_STRENGTH`].
+    IonicStrengthTooHigh {
+        /// The ionic strength reached, mol/L.
+        mol_per_l: f64,
+    },
+    /// Davies mode: the ionic-strength fixed point did not settle in [`MAX_ACTIVITY_ITERATIONS`].
+    ActivityNotConverged,
+}
+
+impl core::fmt::Display for SolveError {
+    fn fmt(&self, f: &mut core::fmt::Formatter<'_>) -> core::fmt::Result {
+        match self {
+            Self::NonFinite => f.write_str("composition or start value is not finite"),
+            Self::NoRoot { excess_at_min_eq_per_l, excess_at_max_eq_per_l } => write!(
+                f,
+                "no pH in [{PH_MIN}, {PH_MAX}] balances the charges (excess {excess_at_min_eq_per_l:e} eq/L at pH {PH_MIN}, {excess_at_max_eq_per_l:e} eq/L at pH {PH_MAX})"
+            ),
+            Self::IterationLimit { iterations } => write!(f, "pH solver stopped after {iterations} iterations"),
+            Self::IonicStrengthTooHigh { mol_per_l } => write!(
+                f,
+                "ionic strength {mol_per_l:.3} mol/L is above the Davies limit {DAVIES_MAX_IONIC_STRENGTH} mol/L; use ideal activities"
+            ),
+            Self::ActivityNotConverged => f.write_str("ionic strength did not converge"),
+        }
+    }
+}
+
+impl core::error::Error for SolveError {}
+
+/// Solver settings. `Default` is what the controller should use.
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct SolverOptions<R: Real> {
+    /// Start from this pH (e.g. the previous cycle's result). `None`: cold start at pH 7.
+    pub warm_start_ph: Option<R>,
+    /// Davies mode: start the ionic-strength fixed point here (mol/L, e.g. the previous
+    /// cycle's). `None`: computed from the composition at the start pH (one evaluation).
+    pub warm_start_ionic_strength: Option<R>,
+    /// Iteration limit per inner solve; clamped to [`max_ph_iterations`]. Lowering it is for
+    /// tests of the limit path and for hard real-time budgets.
+    pub max_iterations: u32,
+    /// Guarded Newton (`true`) or plain bisection (`false`, the benchmark baseline).
+    pub newton: bool,
+}
+
+impl<R: Real> Default for SolverOptions<R> {
+    fn default() -> Self {
+        Self { warm_start_ph: None, warm_start_ionic_strength: None, max_iterations: u32::MAX, newton: true }
+    }
+}
+
+/// The solved state of a solution.
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct Equilibrium<R: Real> {
+    /// pH = −log10 a(H⁺) (activity scale in Davies mode, concentration scale in ideal mode).
+    pub ph: R,
+    /// Newton/bisection iterations spent, summed over ionic-strength rounds.
+    pub iterations: u32,
+    /// Buffer capacity β = dCb/dpH at the root, mol/L per pH unit (> 0).
+    pub buffer_capacity_mol_per_l_per_ph: R,
+    /// Ionic strength at the root, mol/L (computed in both activity modes).
+    pub ionic_strength_mol_per_l: R,
+    /// Charge-balance residual at the returned pH, eq/L.
+    pub residual_eq_per_l: R,
+    /// The Davies factor used (log10 γ(z) = −factor·z²); 0 in ideal mode.
+    pub davies_factor: R,
+}
+
+/// Result of one charge-balance evaluation.
+#[derive(Clone, Copy, Debug)]
+pub(crate) struct Eval<R> {
+    pub excess: R,
+    pub beta: R,
+    pub ionic_strength: R,
+}
+
+/// Alpha fractions of a component at `ph` with Davies factor `af`: returns the fractions
+/// (entries past `steps` are 0). Computed in log space, scaled by the largest term, so neither
+/// `f32` nor `f64` can overflow or underflow to a 0/0.
+pub(crate) fn alphas<R: Real>(c: &Component<R>, ph: R, af: R) -> [R; MAX_STEPS + 1] {
+    let n = c.system.step_count();
+    let mut logs = [R::ZERO; MAX_STEPS + 1];
+    let mut acc = R::ZERO;
+    let mut max = R::ZERO;
+    for j in 1..=n {
+        // log([A_j]/[A_{j−1}]) = pH − pK_j + log γ(z_{j−1}) − log γ(z_j), with z_j = z_{j−1} − 1:
+        // the γ terms give −af·(2·z_{j−1} − 1).
+        let z_prev = c.system.charge_of_form(j - 1);
+        let pk = c.pk.get(j - 1).copied().unwrap_or(R::ZERO);
+        acc += ph - pk - af * R::from_i32(2 * z_prev - 1);
+        if let Some(l) = logs.get_mut(j) {
+            *l = acc;
+        }
+        max = max.max(acc);
+    }
+    let mut out = [R::ZERO; MAX_STEPS + 1];
+    let mut sum = R::ZERO;
+    for (o, l) in out.iter_mut().zip(logs.iter()).take(n + 1) {
+        *o = (*l - max).exp10();
+        sum += *o;
+    }
+    // sum ≥ 1 because the largest term is 10^0.
+    for o in out.iter_mut().take(n + 1) {
+        *o = *o / sum;
+    }
+    out
+}
+
+impl<R: Real, const N: usize> Solution<R, N> {
+    /// Charge excess (eq/L), buffer capacity and ionic strength at `ph` with Davies factor `af`.
+    pub(crate) fn evaluate(&self, ph: R, af: R) -> Eval<R> {
+        // [H+] = a_H/γ1 and [OH−] = Kw/(a_H·γ1); log γ1 = −af.
+        let h = (af - ph).exp10();
+        let oh = (ph - self.pkw() + af).exp10();
+        let mut excess = h - oh + self.strong_charge_eq_per_l();
+        let mut var_sum = h + oh;
+        let mut ionic2 = h + oh;
+        for c in self.components() {
+            let a = alphas(c, ph, af);
+            let z0 = c.system.charge_of_form(0);
+            let mut nbar = R::ZERO;
+            let mut z2 = R::ZERO;
+            for (j, aj) in a.iter().enumerate().take(c.system.step_count() + 1) {
+                let jr = R::from_i32(i32::try_from(j).unwrap_or(0));
+                nbar += jr * *aj;
+                let z = R::from_i32(z0 - i32::try_from(j).unwrap_or(0));
+                z2 += z * z * *aj;
+            }
+            let mut var = R::ZERO;
+            for (j, aj) in a.iter().enumerate().take(c.system.step_count() + 1) {
+                let d = R::from_i32(i32::try_from(j).unwrap_or(0)) - nbar;
+                var += d * d * *aj;
+            }
+            excess += c.total_mol_per_l * (R::from_i32(z0) - nbar);
+            var_sum += c.total_mol_per_l * var;
+            ionic2 += c.total_mol_per_l * z2;
+        }
+        Eval {
+            excess,
+            beta: R::LN_10 * var_sum,
+            ionic_strength: R::from_f64(0.5) * ionic2 + self.strong_ionic_strength_mol_per_l(),
+        }
+    }
+
+    /// Charge excess (eq/L) of this solution if it were at `ph` with activity coefficients
+    /// from `ionic_strength_mol_per_l` (ignored in ideal mode). Linear in the totals: the
+    /// quantity the dose model mixes. Positive means the true pH is above `ph`.
+    pub fn charge_excess_eq_per_l(&self, ph: R, ionic_strength_mol_per_l: R) -> R {
+        let af = match self.activity() {
+            Activity::Ideal => R::ZERO,
+            Activity::Davies => activity::davies_factor(self.debye_huckel_a(), ionic_strength_mol_per_l),
+        };
+        self.evaluate(ph, af).excess
+    }
+
+    fn check_finite(&self) -> Result<(), SolveError> {
+        let ok = self.strong_charge_eq_per_l().is_finite()
+            && self.strong_ionic_strength_mol_per_l().is_finite()
+            && self.components().iter().all(|c| c.total_mol_per_l.is_finite());
+        if ok { Ok(()) } else { Err(SolveError::NonFinite) }
+    }
+
+    /// Solves for the pH with default options (cold start, guarded Newton).
+    pub fn solve(&self) -> Result<Equilibrium<R>, SolveError> {
+        self.solve_with(SolverOptions::default())
+    }
+
+    /// Solves for the pH starting from `warm_start_ph` (e.g. the previous control cycle's pH;
+    /// any finite value is accepted and clamped into the search bracket).
+    pub fn solve_from(&self, warm_start_ph: R) -> Result<Equilibrium<R>, SolveError> {
+        self.solve_with(SolverOptions { warm_start_ph: Some(warm_start_ph), ..SolverOptions::default() })
+    }
+
+    /// Solves again from a previous result of (nearly) the same solution — the control-loop
+    /// case: typically one or two iterations.
+    pub fn solve_warm(&self, previous: &Equilibrium<R>) -> Result<Equilibrium<R>, SolveError> {
+        self.solve_with(SolverOptions {
+            warm_start_ph: Some(previous.ph),
+            warm_start_ionic_strength: Some(previous.ionic_strength_mol_per_l),
+            ..SolverOptions::default()
+        })
+    }
+
+    /// Solves for the pH with explicit options. Never panics; at most
+    /// [`MAX_ACTIVITY_ITERATIONS`] × [`max_ph_iterations`] charge-balance evaluations.
+    pub fn solve_with(&self, options: SolverOptions<R>) -> Result<Equilibrium<R>, SolveError> {
+        self.check_finite()?;
+        let mut start = match options.warm_start_ph {
+            Some(p) if !p.is_finite() => return Err(SolveError::NonFinite),
+            Some(p) => p.max(R::from_f64(PH_MIN)).min(R::from_f64(PH_MAX)),
+            None => R::from_f64(7.0),
+        };
+        let limit = options.max_iterations.min(max_ph_iterations::<R>());
+        match self.activity() {
+            Activity::Ideal => {
+                let (ph, e, it) = self.inner_solve(start, R::ZERO, limit, options.newton)?;
+                Ok(self.finish(ph, e, it, R::ZERO))
+            }
+            Activity::Davies => {
+                let a = self.debye_huckel_a();
+                let mut total_iterations = 0_u32;
+                let mut ionic = match options.warm_start_ionic_strength {
+                    Some(i) if i.is_finite() && i >= R::ZERO => i,
+                    Some(_) => return Err(SolveError::NonFinite),
+                    None => {
+                        total_iterations = 1;
+                        let af0 = activity::davies_factor(a, self.strong_ionic_strength_mol_per_l());
+                        self.evaluate(start, af0).ionic_strength
+                    }
+                };
+                for _round in 0..MAX_ACTIVITY_ITERATIONS {
+                    if ionic.to_f64() > DAVIES_MAX_IONIC_STRENGTH {
+                        return Err(SolveError::IonicStrengthTooHigh { mol_per_l: ionic.to_f64() });
+                    }
+                    let af = activity::davies_factor(a, ionic);
+                    let (ph, e, it) = self.inner_solve(start, af, limit, options.newton)?;
+                    total_iterations = total_iterations.saturating_add(it);
+                    let next = e.ionic_strength;
+                    // Converged when the ionic strength reproduces itself, or when the pH did
+                    // not move from where this round started (the activity update changed
+                    // nothing the solver can resolve).
+                    let tol = R::IONIC_STRENGTH_TOLERANCE * next.max(R::from_f64(1e-12));
+                    if (next - ionic).abs() <= tol || (it == 1 && (ph - start).abs() <= R::PH_TOLERANCE) {
+                        if next.to_f64() > DAVIES_MAX_IONIC_STRENGTH {
+                            return Err(SolveError::IonicStrengthTooHigh { mol_per_l: next.to_f64() });
+                        }
+                        return Ok(self.finish(ph, e, total_iterations, af));
+                    }
+                    ionic = next;
+                    start = ph;
+                }
+                Err(SolveError::ActivityNotConverged)
+            }
+        }
+    }
+
+    fn finish(&self, ph: R, e: Eval<R>, iterations: u32, af: R) -> Equilibrium<R> {
+        Equilibrium {
+            ph,
+            iterations,
+            buffer_capacity_mol_per_l_per_ph: e.beta,
+            ionic_strength_mol_per_l: e.ionic_strength,
+            residual_eq_per_l: e.excess,
+            davies_factor: af,
+        }
+    }
+
+    /// One solve at fixed activity factor: returns (pH, evaluation at pH, iterations).
+    ///
+    /// Phase 1 (at most [`bisection_iterations`] iterations): guarded Newton. The Newton step
+    /// is taken when it stays inside the bracket and the iteration is converging (the charge
+    /// excess or the step at least halved since the previous iteration). Otherwise the solver
+    /// bisects the bracket, or, while the root has only been bounded on one side, steps
+    /// [`EXPANSION_STEP_PH`] towards it. Phase 2: plain bisection of the bracket phase 1 left,
+    /// at most [`bisection_iterations`] more. Hence ≤ [`max_ph_iterations`] in all.
+    fn inner_solve(&self, start: R, af: R, limit: u32, newton: bool) -> Result<(R, Eval<R>, u32), SolveError> {
+        let tol = R::PH_TOLERANCE;
+        let half = R::from_f64(0.5);
+        let newton_budget = if newton { bisection_iterations::<R>() } else { 0 };
+        let mut lo = R::from_f64(PH_MIN);
+        let mut hi = R::from_f64(PH_MAX);
+        let (mut lo_seen, mut hi_seen) = (false, false);
+        let mut x = if newton { start } else { (lo + hi) * half };
+        let mut previous: Option<(R, R)> = None; // (excess, step) of the previous iteration
+        let mut iterations = 0_u32;
+        while iterations < limit {
+            iterations += 1;
+            let e = self.evaluate(x, af);
+            if !e.excess.is_finite() || !e.beta.is_finite() {
+                return Err(SolveError::NonFinite);
+            }
+            if e.excess > R::ZERO {
+                lo = x;
+                lo_seen = true;
+            } else if e.excess < R::ZERO {
+                hi = x;
+                hi_seen = true;
+            } else {
+                return self.accept(x, e, iterations, af);
+            }
+            let bisect = (lo + hi) * half;
+            let next = if iterations <= newton_budget && e.beta > R::ZERO {
+                let step = e.excess / e.beta;
+                let n = x + step;
+                let converging =
+                    previous.is_none_or(|(pf, ps)| e.excess.abs() <= pf.abs() * half || step.abs() <= ps.abs() * half);
+                if n > lo && n < hi && converging {
+                    n
+                } else if lo_seen && hi_seen {
+                    bisect
+                } else {
+                    // Root bounded on one side only: walk towards it instead of jumping to the
+                    // middle of the whole search range.
+                    let walk = if e.excess > R::ZERO {
+                        x + R::from_f64(EXPANSION_STEP_PH)
+                    } else {
+                        x - R::from_f64(EXPANSION_STEP_PH)
+                    };
+                    if walk > lo && walk < hi { walk } else { bisect }
+                }
+            } else {
+                bisect
+            };
+            if (next - x).abs() <= tol || hi - lo <= tol {
+                return self.accept(x, e, iterations, af);
+            }
+            previous = Some((e.excess, next - x));
+            x = next;
+        }
+        Err(SolveError::IterationLimit { iterations })
+    }
+
+    /// Accepts a converged pH unless it sits on the edge of the search bracket (no root).
+    fn accept(&self, x: R, e: Eval<R>, iterations: u32, af: R) -> Result<(R, Eval<R>, u32), SolveError> {
+        let edge = R::from_f64(1e3) * R::PH_TOLERANCE;
+        if x <= R::from_f64(PH_MIN) + edge || x >= R::from_f64(PH_MAX) - edge {
+            let at_min = self.evaluate(R::from_f64(PH_MIN), af).excess.to_f64();
+            let at_max = self.evaluate(R::from_f64(PH_MAX), af).excess.to_f64();
+            if !(at_min > 0.0 && at_max < 0.0) {
+                return Err(SolveError::NoRoot { excess_at_min_eq_per_l: at_min, excess_at_max_eq_per_l: at_max });
+            }
+        }
+        Ok((x, e, iterations))
+    }
+
+    /// Concentrations of every form of every system, and of H⁺ and OH⁻, at a solved state.
+    pub fn speciate(&self, eq: &Equilibrium<R>) -> Speciation<R, N> {
+        let af = eq.davies_factor;
+        let mut totals = heapless::Vec::new();
+        for c in self.components() {
+            let a = alphas(c, eq.ph, af);
+            let mut conc = [R::ZERO; MAX_STEPS + 1];
+            for (o, aj) in conc.iter_mut().zip(a.iter()) {
+                *o = *aj * c.total_mol_per_l;
+            }
+            // Capacity equals the solution's, so this push cannot fail; ignore defensively.
+            let _ = totals.push(conc);
+        }
+        Speciation {
+            h_mol_per_l: (af - eq.ph).exp10(),
+            oh_mol_per_l: (eq.ph - self.pkw() + af).exp10(),
+            forms_mol_per_l: totals,
+        }
+    }
+}
+
+/// Concentrations at equilibrium.
+#[derive(Clone, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct Speciation<R: Real, const N: usize> {
+    /// [H⁺], mol/L.
+    pub h_mol_per_l: R,
+    /// [OH⁻], mol/L.
+    pub oh_mol_per_l: R,
+    /// For each component (same order as [`Solution::components`]), the concentration of each
+    /// form, fully protonated first, mol/L; entries past the system's last form are 0.
+    pub forms_mol_per_l: heapless::Vec<[R; MAX_STEPS + 1], N>,
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::units::Celsius;
+
+    fn ideal<const N: usize>() -> Solution<f64, N> {
+        Solution::new(Celsius::standard(), Activity::Ideal)
+    }
+
+    #[test]
+    fn pure_water_is_neutral() {
+        let s = ideal::<1>();
+        let e = s.solve().unwrap();
+        assert!((e.ph - 13.995 / 2.0).abs() < 0.002, "{}", e.ph);
+        // Water's buffer capacity at neutrality: ln10·2·1e-7 = 4.6e-7 (REFERENCE-VALUES §6, calc).
+        assert!((e.buffer_capacity_mol_per_l_per_ph - 4.6e-7).abs() < 0.05e-7);
+    }
+
+    #[test]
+    fn iteration_limits_are_what_the_docs_say() {
+        assert_eq!(bisection_iterations::<f64>(), 38);
+        assert_eq!(bisection_iterations::<f32>(), 21);
+        assert_eq!(max_ph_iterations::<f64>(), 76);
+        assert_eq!(max_ph_iterations::<f32>(), 42);
+    }
+
+    #[test]
+    fn lowered_iteration_limit_is_reported() {
+        let mut s = ideal::<2>();
+        s.add_formula("H3PO4", 0.01).unwrap();
+        let opt = SolverOptions { max_iterations: 2, ..SolverOptions::default() };
+        assert_eq!(s.solve_with(opt), Err(SolveError::IterationLimit { iterations: 2 }));
+    }
+
+    #[test]
+    fn bisection_uses_exactly_the_documented_count_or_fewer() {
+        let mut s = ideal::<2>();
+        s.add_formula("Na2CO3", 0.003).unwrap();
+        let e = s.solve_with(SolverOptions { newton: false, ..SolverOptions::default() }).unwrap();
+        assert!(e.iterations <= bisection_iterations::<f64>() + 1, "{}", e.iterations);
+        let n = s.solve().unwrap();
+        assert!((n.ph - e.ph).abs() < 1e-9);
+        assert!(n.iterations < e.iterations);
+    }
+
+    #[test]
+    fn warm_start_takes_few_iterations() {
+        let mut s: Solution<f64, 4> = Solution::standard();
+        s.add_formula("NaHCO3", 0.002).unwrap();
+        s.add_formula("HCl", 0.001).unwrap();
+        let cold = s.solve().unwrap();
+        let near = s.solve_from(cold.ph + 0.01).unwrap();
+        assert!((near.ph - cold.ph).abs() < 1e-9);
+        assert!(near.iterations <= 10, "iterations from a nearby pH: {}", near.iterations);
+        let warm = s.solve_warm(&cold).unwrap();
+        assert!((warm.ph - cold.ph).abs() < 1e-9);
+        assert!(warm.iterations <= 2, "warm iterations {}", warm.iterations);
+    }
+
+    #[test]
+    fn non_finite_warm_start_is_rejected() {
+        let s = ideal::<1>();
+        assert_eq!(s.solve_from(f64::NAN), Err(SolveError::NonFinite));
+    }
+
+    #[test]
+    fn davies_refuses_high_ionic_strength() {
+        let mut s: Solution<f64, 1> = Solution::standard();
+        s.add_formula("NaCl", 2.0).unwrap();
+        assert!(matches!(s.solve(), Err(SolveError::IonicStrengthTooHigh { .. })));
+        s.set_activity(Activity::Ideal);
+        assert!(s.solve().is_ok());
+    }
+
+    #[test]
+    fn strong_acid_and_base_limits() {
+        // 0.01 M HCl, ideal: pH 2.000 (exact charge balance; water's share is negligible).
+        let mut s = ideal::<1>();
+        s.add_formula("HCl", 0.01).unwrap();
+        assert!((s.solve().unwrap().ph - 2.0).abs() < 1e-6);
+        let mut b = ideal::<1>();
+        b.add_formula("NaOH", 0.01).unwrap();
+        assert!((b.solve().unwrap().ph - (13.995 - 2.0)).abs() < 0.002);
+    }
+
+    #[test]
+    fn speciation_sums_to_totals_and_balances_charge() {
+        let mut s: Solution<f64, 4> = Solution::standard();
+        s.add_formula("Na2HPO4", 0.01).unwrap();
+        s.add_formula("CO2", 0.001).unwrap();
+        let e = s.solve().unwrap();
+        let sp = s.speciate(&e);
+        let mut charge = sp.h_mol_per_l - sp.oh_mol_per_l + s.strong_charge_eq_per_l();
+        for (c, f) in s.components().iter().zip(sp.forms_mol_per_l.iter()) {
+            let sum: f64 = f.iter().sum();
+            assert!((sum - c.total_mol_per_l).abs() < 1e-15);
+            for (j, x) in f.iter().enumerate() {
+                charge += f64::from(c.system.charge_of_form(j)) * x;
+            }
+        }
+        assert!(charge.abs() < 1e-12, "{charge}");
+    }
+}

@@ -1,0 +1,244 @@
+//! The real-number abstraction: the chemistry runs in `f32` (MCU with a single-precision
+//! FPU) and `f64` (host) from the same code.
+//!
+//! Only what the solver needs is here. `f64` uses `libm` (or `std` with the `std` feature);
+//! `f32` uses `libm` by default and `micromath` with the `fast-math` feature. The pH error of
+//! each choice against `f64` is measured by `tests/precision.rs` and stated in the README.
+
+use core::fmt::{Debug, Display};
+use core::ops::{Add, AddAssign, Div, Mul, MulAssign, Neg, Sub, SubAssign};
+
+/// A floating-point type the chemistry can run in. Implemented for `f32` and `f64`.
+pub trait Real:
+    Copy
+    + Debug
+    + Display
+    + PartialOrd
+    + Add<Output = Self>
+    + Sub<Output = Self>
+    + Mul<Output = Self>
+    + Div<Output = Self>
+    + Neg<Output = Self>
+    + AddAssign
+    + SubAssign
+    + MulAssign
+    + Default
+{
+    /// 0.
+    const ZERO: Self;
+    /// 1.
+    const ONE: Self;
+    /// ln 10.
+    const LN_10: Self;
+    /// Convergence tolerance of the pH solver in pH units (1e-10 for `f64`, 1e-5 for `f32`).
+    const PH_TOLERANCE: Self;
+    /// Relative convergence tolerance of the ionic-strength fixed point.
+    const IONIC_STRENGTH_TOLERANCE: Self;
+    /// Short name of the type, for reports ("f32" / "f64").
+    const NAME: &'static str;
+
+    /// Converts from `f64` (rounding for `f32`).
+    fn from_f64(v: f64) -> Self;
+    /// Converts to `f64` (exact).
+    fn to_f64(self) -> f64;
+    /// 10^self.
+    fn exp10(self) -> Self;
+    /// log10(self); NaN for negative input.
+    fn log10(self) -> Self;
+    /// Natural logarithm; NaN for negative input.
+    fn ln(self) -> Self;
+    /// e^self.
+    fn exp(self) -> Self;
+    /// Square root; NaN for negative input.
+    fn sqrt(self) -> Self;
+    /// Absolute value.
+    fn abs(self) -> Self;
+    /// `true` unless NaN or infinite.
+    fn is_finite(self) -> bool;
+
+    /// The larger of two values (NaN-ignoring like `f64::max`).
+    #[inline]
+    fn max(self, other: Self) -> Self {
+        if self >= other || other.is_nan_like() { self } else { other }
+    }
+    /// The smaller of two values (NaN-ignoring like `f64::min`).
+    #[inline]
+    fn min(self, other: Self) -> Self {
+        if self <= other || other.is_nan_like() { self } else { other }
+    }
+    /// `true` for NaN.
+    #[inline]
+    #[allow(clippy::eq_op, reason = "NaN is the only value unequal to itself")]
+    fn is_nan_like(self) -> bool {
+        self != self
+    }
+    /// Converts a small integer.
+    #[inline]
+    fn from_i32(v: i32) -> Self {
+        Self::from_f64(f64::from(v))
+    }
+}
+
+impl Real for f64 {
+    const ZERO: Self = 0.0;
+    const ONE: Self = 1.0;
+    const LN_10: Self = core::f64::consts::LN_10;
+    const PH_TOLERANCE: Self = 1e-10;
+    const IONIC_STRENGTH_TOLERANCE: Self = 1e-8;
+    const NAME: &'static str = "f64";
+
+    #[inline]
+    fn from_f64(v: f64) -> Self {
+        v
+    }
+    #[inline]
+    fn to_f64(self) -> f64 {
+        self
+    }
+    #[inline]
+    fn exp10(self) -> Self {
+        libm::exp10(self)
+    }
+    #[inline]
+    fn log10(self) -> Self {
+        libm::log10(self)
+    }
+    #[inline]
+    fn ln(self) -> Self {
+        libm::log(self)
+    }
+    #[inline]
+    fn exp(self) -> Self {
+        libm::exp(self)
+    }
+    #[inline]
+    fn sqrt(self) -> Self {
+        libm::sqrt(self)
+    }
+    #[inline]
+    fn abs(self) -> Self {
+        libm::fabs(self)
+    }
+    #[inline]
+    fn is_finite(self) -> bool {
+        f64::is_finite(self)
+    }
+}
+
+impl Real for f32 {
+    const ZERO: Self = 0.0;
+    const ONE: Self = 1.0;
+    const LN_10: Self = core::f32::consts::LN_10;
+    const PH_TOLERANCE: Self = 1e-5;
+    const IONIC_STRENGTH_TOLERANCE: Self = 1e-5;
+    const NAME: &'static str = "f32";
+
+    #[inline]
+    #[allow(clippy::cast_possible_truncation, reason = "f32 is the requested precision")]
+    fn from_f64(v: f64) -> Self {
+        v as f32
+    }
+    #[inline]
+    fn to_f64(self) -> f64 {
+        f64::from(self)
+    }
+    #[inline]
+    fn exp10(self) -> Self {
+        f32_math::exp10(self)
+    }
+    #[inline]
+    fn log10(self) -> Self {
+        f32_math::log10(self)
+    }
+    #[inline]
+    fn ln(self) -> Self {
+        f32_math::ln(self)
+    }
+    #[inline]
+    fn exp(self) -> Self {
+        f32_math::exp(self)
+    }
+    #[inline]
+    fn sqrt(self) -> Self {
+        f32_math::sqrt(self)
+    }
+    #[inline]
+    fn abs(self) -> Self {
+        libm::fabsf(self)
+    }
+    #[inline]
+    fn is_finite(self) -> bool {
+        f32::is_finite(self)
+    }
+}
+
+#[cfg(not(feature = "fast-math"))]
+mod f32_math {
+    #[inline]
+    pub fn exp10(x: f32) -> f32 {
+        libm::exp10f(x)
+    }
+    #[inline]
+    pub fn log10(x: f32) -> f32 {
+        libm::log10f(x)
+    }
+    #[inline]
+    pub fn ln(x: f32) -> f32 {
+        libm::logf(x)
+    }
+    #[inline]
+    pub fn exp(x: f32) -> f32 {
+        libm::expf(x)
+    }
+    #[inline]
+    pub fn sqrt(x: f32) -> f32 {
+        libm::sqrtf(x)
+    }
+}
+
+#[cfg(feature = "fast-math")]
+mod f32_math {
+    use micromath::F32Ext;
+    #[inline]
+    pub fn exp10(x: f32) -> f32 {
+        F32Ext::exp(x * core::f32::consts::LN_10)
+    }
+    #[inline]
+    pub fn log10(x: f32) -> f32 {
+        F32Ext::log10(x)
+    }
+    #[inline]
+    pub fn ln(x: f32) -> f32 {
+        F32Ext::ln(x)
+    }
+    #[inline]
+    pub fn exp(x: f32) -> f32 {
+        F32Ext::exp(x)
+    }
+    #[inline]
+    pub fn sqrt(x: f32) -> f32 {
+        F32Ext::sqrt(x)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::Real;
+
+    fn roundtrip<R: Real>() {
+        let x = R::from_f64(2.5);
+        let y = x.exp10().log10();
+        assert!((y - x).abs().to_f64() < 1e-5, "{} exp10/log10 roundtrip {y}", R::NAME);
+        assert!((R::from_f64(4.0).sqrt() - R::from_f64(2.0)).abs().to_f64() < 1e-4);
+        assert!((R::ONE.exp().ln() - R::ONE).abs().to_f64() < 1e-4);
+        assert!(!R::from_f64(f64::NAN).is_finite());
+        assert_eq!(R::from_f64(1.0).max(R::from_f64(2.0)).to_f64(), 2.0);
+        assert_eq!(R::from_f64(1.0).min(R::from_f64(2.0)).to_f64(), 1.0);
+    }
+
+    #[test]
+    fn f32_and_f64_basic_functions() {
+        roundtrip::<f32>();
+        roundtrip::<f64>();
+    }
+}
