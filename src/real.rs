@@ -97,23 +97,23 @@ impl Real for f64 {
     }
     #[inline]
     fn exp10(self) -> Self {
-        libm::exp10(self)
+        f64_math::exp10(self)
     }
     #[inline]
     fn log10(self) -> Self {
-        libm::log10(self)
+        f64_math::log10(self)
     }
     #[inline]
     fn ln(self) -> Self {
-        libm::log(self)
+        f64_math::ln(self)
     }
     #[inline]
     fn exp(self) -> Self {
-        libm::exp(self)
+        f64_math::exp(self)
     }
     #[inline]
     fn sqrt(self) -> Self {
-        libm::sqrt(self)
+        f64_math::sqrt(self)
     }
     #[inline]
     fn abs(self) -> Self {
@@ -169,6 +169,37 @@ impl Real for f32 {
     #[inline]
     fn is_finite(self) -> bool {
         f32::is_finite(self)
+    }
+}
+
+/// `f64` functions: `libm` in `no_std`, the platform's (via `std`) with the `std` feature.
+#[cfg(not(feature = "std"))]
+mod f64_math {
+    pub use libm::{exp, exp10, log as ln, log10, sqrt};
+}
+
+#[cfg(feature = "std")]
+mod f64_math {
+    #[inline]
+    pub fn exp10(x: f64) -> f64 {
+        // 10^x; std has no exp10. powf is correctly rounded to within 1 ulp on glibc.
+        10f64.powf(x)
+    }
+    #[inline]
+    pub fn log10(x: f64) -> f64 {
+        x.log10()
+    }
+    #[inline]
+    pub fn ln(x: f64) -> f64 {
+        x.ln()
+    }
+    #[inline]
+    pub fn exp(x: f64) -> f64 {
+        x.exp()
+    }
+    #[inline]
+    pub fn sqrt(x: f64) -> f64 {
+        x.sqrt()
     }
 }
 

@@ -1,0 +1,93 @@
+#!/usr/bin/env bash
+# One entry point for developers and CI (CI runs `./ci.sh all` through .ci/run).
+#
+#   ./ci.sh all      everything below, tests last
+#   ./ci.sh fmt      rustfmt check
+#   ./ci.sh clippy   clippy with -D warnings, every feature set
+#   ./ci.sh thumb    the no_std core for bare-metal targets, every feature set
+#   ./ci.sh doc      rustdoc with warnings denied
+#   ./ci.sh bench    compile the criterion benches (run them with `cargo bench`)
+#   ./ci.sh fuzz     short cargo-fuzz smoke run of every target (needs a nightly toolchain)
+#   ./ci.sh test     unit, integration, property, reference and CLI tests
+set -euo pipefail
+cd "$(dirname "$0")"
+export CARGO_TERM_COLOR="${CARGO_TERM_COLOR:-never}"
+
+step() { printf '\n==> %s\n' "$*"; }
+
+# Feature sets of the core crate that must each build and pass (listed explicitly).
+CORE_FEATURES=("" "fast-math" "defmt" "fast-math,defmt")
+THUMB_TARGETS=("thumbv7em-none-eabihf" "thumbv6m-none-eabi")
+
+do_fmt() {
+    step "rustfmt"
+    cargo fmt --all -- --check
+}
+
+do_clippy() {
+    for f in "${CORE_FEATURES[@]}"; do
+        step "clippy phdose features=[$f]"
+        cargo clippy -p phdose --all-targets --features "$f" -- -D warnings
+    done
+    step "clippy workspace"
+    cargo clippy --workspace --all-targets -- -D warnings
+}
+
+do_thumb() {
+    # The core must have no alloc: nothing may even name it.
+    if grep -rnE 'extern crate alloc|alloc::' src/; then
+        echo "error: the core crate must not use alloc" >&2
+        exit 1
+    fi
+    for t in "${THUMB_TARGETS[@]}"; do
+        for f in "${CORE_FEATURES[@]}"; do
+            step "build phdose --target $t features=[$f]"
+            RUSTFLAGS="-D warnings" cargo build -p phdose --no-default-features --features "$f" --target "$t"
+            RUSTFLAGS="-D warnings" cargo build -p phdose --no-default-features --features "$f" --target "$t" --release
+        done
+    done
+}
+
+do_doc() {
+    step "rustdoc"
+    RUSTDOCFLAGS="-D warnings" cargo doc -p phdose --no-deps --features defmt
+}
+
+do_bench() {
+    step "compile benches"
+    cargo bench -p phdose --no-run
+}
+
+do_fuzz() {
+    step "fuzz smoke run"
+    bash fuzz/smoke.sh "${FUZZ_SECONDS:-20}"
+}
+
+do_test() {
+    step "tests (workspace)"
+    cargo test --workspace
+    step "tests (core with fast-math: f32 precision bound for micromath)"
+    cargo test -p phdose --features fast-math
+}
+
+case "${1:-all}" in
+    fmt) do_fmt ;;
+    clippy) do_clippy ;;
+    thumb) do_thumb ;;
+    doc) do_doc ;;
+    bench) do_bench ;;
+    fuzz) do_fuzz ;;
+    test) do_test ;;
+    all)
+        do_fmt
+        do_clippy
+        do_thumb
+        do_doc
+        do_bench
+        do_test
+        ;;
+    *)
+        echo "usage: $0 [all|fmt|clippy|thumb|doc|bench|fuzz|test]" >&2
+        exit 2
+        ;;
+esac
