@@ -25,6 +25,7 @@
 //! - [`real`]: the `f32`/`f64` abstraction.
 //! - [`units`]: checked unit newtypes.
 //! - [`chem`]: water, acid–base systems, catalogue, substances, solution, solver, salt hydrolysis.
+//! - [`titration`]: streams, reagents, dose for a setpoint, process gain, boot checks.
 //!
 //! MSRV: Rust 1.95.
 #![no_std]
@@ -38,6 +39,7 @@ extern crate std;
 
 pub mod chem;
 pub mod real;
+pub mod titration;
 pub mod units;
 
 pub use real::Real;

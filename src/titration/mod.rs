@@ -1,0 +1,9 @@
+//! Titration and dose models on top of [`crate::chem`]: streams and mixing, commercial reagents,
+//! the inverse dose for a setpoint (feed-forward) with process gain and boot checks.
+
+pub mod dose;
+pub mod reagent;
+pub mod stream;
+
+pub use dose::{DoseCheck, DoseError, DosePlan, DoseRequest, Pump, plan};
+pub use stream::Stream;
