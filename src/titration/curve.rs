@@ -1,0 +1,446 @@
+//! Titration curves: pH of a sample against added titrant, with adaptive spacing, and the
+//! equivalence points — from the curve (maximum slope) and from the model (stoichiometry).
+
+use heapless::Vec;
+
+use crate::chem::{CompositionError, Equilibrium, Solution, SolveError};
+use crate::real::Real;
+
+/// A local slope maximum counts as an inflection when it is at least this many times steeper
+/// than the flattest part of the curve on both sides of it (common practice, no source).
+pub const INFLECTION_PROMINENCE: f64 = 3.0;
+
+/// One point of a titration curve.
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct CurvePoint<R: Real> {
+    /// Titrant added, L.
+    pub titrant_l: R,
+    /// pH of the mixture.
+    pub ph: R,
+    /// Buffer capacity of the mixture, mol/L per pH.
+    pub buffer_capacity_mol_per_l_per_ph: R,
+}
+
+/// An equivalence point.
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct EquivalencePoint<R: Real> {
+    /// Titrant added at the point, L.
+    pub titrant_l: R,
+    /// pH there: the pH of the salt solution formed, rarely 7.
+    pub ph: R,
+    /// For model points: the system key and step (1-based) completed there, or `("strong", 0)`
+    /// where the strong ions alone balance; `("", 0)` for a point found on a curve.
+    pub system: &'static str,
+    /// See `system`.
+    pub step: u8,
+}
+
+/// Why a curve could not be computed.
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+#[non_exhaustive]
+pub enum CurveError {
+    /// Sample volume or titrant range not finite or ≤ 0.
+    InvalidRange,
+    /// Mixing failed (e.g. capacity `N` too small for the titrant's systems).
+    Composition(CompositionError),
+    /// A solve failed.
+    Solve(SolveError),
+}
+
+impl core::fmt::Display for CurveError {
+    fn fmt(&self, f: &mut core::fmt::Formatter<'_>) -> core::fmt::Result {
+        match self {
+            Self::InvalidRange => f.write_str("sample volume and titrant range must be finite and positive"),
+            Self::Composition(e) => core::fmt::Display::fmt(e, f),
+            Self::Solve(e) => core::fmt::Display::fmt(e, f),
+        }
+    }
+}
+
+impl core::error::Error for CurveError {}
+
+/// A titration: `sample_volume_l` of `sample` receives `titrant`.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Titration<'a, R: Real, const N: usize, const M: usize> {
+    /// The sample (its capacity `N` must also hold the titrant's systems).
+    pub sample: &'a Solution<R, N>,
+    /// Sample volume, L (> 0).
+    pub sample_volume_l: R,
+    /// The titrant.
+    pub titrant: &'a Solution<R, M>,
+}
+
+impl<R: Real, const N: usize, const M: usize> Titration<'_, R, N, M> {
+    fn check(&self) -> Result<(), CurveError> {
+        let v = self.sample_volume_l.to_f64();
+        if v.is_finite() && v > 0.0 { Ok(()) } else { Err(CurveError::InvalidRange) }
+    }
+
+    /// The mixture after adding `titrant_l` L of titrant.
+    pub fn mixture(&self, titrant_l: R) -> Result<Solution<R, N>, CurveError> {
+        self.sample.mix(self.sample_volume_l, self.titrant, titrant_l).map_err(CurveError::Composition)
+    }
+
+    /// Solved state after adding `titrant_l` L, warm-started from `near_ph` if given.
+    pub fn equilibrium_at(&self, titrant_l: R, near_ph: Option<R>) -> Result<Equilibrium<R>, CurveError> {
+        let m = self.mixture(titrant_l)?;
+        match near_ph {
+            Some(p) => m.solve_from(p),
+            None => m.solve(),
+        }
+        .map_err(CurveError::Solve)
+    }
+
+    fn point(&self, titrant_l: R, near_ph: Option<R>) -> Result<CurvePoint<R>, CurveError> {
+        let e = self.equilibrium_at(titrant_l, near_ph)?;
+        Ok(CurvePoint { titrant_l, ph: e.ph, buffer_capacity_mol_per_l_per_ph: e.buffer_capacity_mol_per_l_per_ph })
+    }
+
+    /// Fills `out` (cleared first, capacity `K` ≥ 4) with the curve from 0 to `max_titrant_l`.
+    ///
+    /// Spacing is adaptive: ⌈K/4⌉ evenly spaced points first, then the remaining capacity is
+    /// spent splitting, one at a time, the segment that is longest on a plot normalised to the
+    /// curve's pH span and the titrant range — so the steep parts get the points. Exactly `K`
+    /// solves (each warm-started from a neighbour) and O(K²) comparisons.
+    pub fn curve<const K: usize>(&self, max_titrant_l: R, out: &mut Vec<CurvePoint<R>, K>) -> Result<(), CurveError> {
+        const { assert!(K >= 4, "a titration curve needs at least 4 points") };
+        self.check()?;
+        let vmax = max_titrant_l.to_f64();
+        if !(vmax.is_finite() && vmax > 0.0) {
+            return Err(CurveError::InvalidRange);
+        }
+        out.clear();
+        let initial = K.div_ceil(4).max(2);
+        let mut near = None;
+        for i in 0..initial {
+            let v = max_titrant_l * R::from_f64(i as f64 / (initial - 1) as f64);
+            let p = self.point(v, near)?;
+            near = Some(p.ph);
+            out.push(p).map_err(|_| CurveError::InvalidRange)?;
+        }
+        while out.len() < K {
+            let (lo_ph, hi_ph) =
+                out.iter().fold((R::from_f64(99.0), R::from_f64(-99.0)), |(a, b), p| (a.min(p.ph), b.max(p.ph)));
+            let span = (hi_ph - lo_ph).max(R::from_f64(1e-3));
+            let mut best: Option<(usize, R)> = None;
+            for (i, w) in out.windows(2).enumerate() {
+                if let [a, b] = w {
+                    let dv = (b.titrant_l - a.titrant_l) / max_titrant_l;
+                    let dp = (b.ph - a.ph) / span;
+                    let len = dv * dv + dp * dp;
+                    if best.is_none_or(|(_, l)| len > l) {
+                        best = Some((i, len));
+                    }
+                }
+            }
+            let Some((i, _)) = best else { break };
+            let (Some(a), Some(b)) = (out.get(i).copied(), out.get(i + 1).copied()) else { break };
+            let p = self.point((a.titrant_l + b.titrant_l) * R::from_f64(0.5), Some(a.ph))?;
+            out.insert(i + 1, p).map_err(|_| CurveError::InvalidRange)?;
+        }
+        Ok(())
+    }
+
+    /// Equivalence points predicted from the composition (strong titrants only: the titrant's
+    /// own acid–base systems are not counted). Level 0 has every system fully protonated; then
+    /// each system step, taken in order of pKa, is a further stoichiometric level; the titrant volume that reaches it is where the strong-ion charge
+    /// balances the systems' charges with every lower-pKa step completed. Points within
+    /// (0, `max_titrant_l`] are returned with their pH (solved). At most 3·N levels.
+    pub fn model_equivalence_points<const E: usize>(
+        &self,
+        max_titrant_l: R,
+        out: &mut Vec<EquivalencePoint<R>, E>,
+    ) -> Result<(), CurveError> {
+        self.check()?;
+        out.clear();
+        let ct = self.titrant.strong_charge_eq_per_l();
+        if ct == R::ZERO {
+            return Ok(());
+        }
+        let v0 = self.sample_volume_l;
+        let comps = self.sample.components();
+        // Charge (eq) with no step completed: every system fully protonated.
+        let mut z = self.sample.strong_charge_eq_per_l() * v0;
+        for c in comps {
+            z += R::from_i32(c.system.charge_of_form(0)) * c.total_mol_per_l * v0;
+        }
+        // Level 0: the strong ions alone balanced, every system untouched (e.g. the strong-acid
+        // point of a sample that also holds carbonate).
+        let mut near = None;
+        let v = -z / ct;
+        if v > R::ZERO && v <= max_titrant_l {
+            let e = self.equilibrium_at(v, near)?;
+            near = Some(e.ph);
+            let _ = out.push(EquivalencePoint { titrant_l: v, ph: e.ph, system: "strong", step: 0 });
+        }
+        // Walk the steps in ascending pKa without storing them: at most 3·N rounds, each a scan.
+        let mut last: Option<(R, usize, usize)> = None; // (pKa, component, step) of the last level
+        for _ in 0..(3 * comps.len()) {
+            let mut next: Option<(R, usize, usize)> = None;
+            for (ci, c) in comps.iter().enumerate() {
+                for step in 1..=c.system.step_count() {
+                    let Some(pk) = self.sample.component_pka(ci, step) else { continue };
+                    let after_last = last.is_none_or(|(lp, lc, ls)| pk > lp || (pk == lp && (ci, step) > (lc, ls)));
+                    let before_next = next.is_none_or(|(np, nc, ns)| pk < np || (pk == np && (ci, step) < (nc, ns)));
+                    if after_last && before_next {
+                        next = Some((pk, ci, step));
+                    }
+                }
+            }
+            let Some((pk, ci, step)) = next else { break };
+            last = Some((pk, ci, step));
+            let Some(c) = comps.get(ci) else { break };
+            z -= c.total_mol_per_l * v0; // one more proton per formula unit removed
+            // Titrant charge ct·v must cancel z: v = −z/ct.
+            let v = -z / ct;
+            if v > R::ZERO && v <= max_titrant_l {
+                let e = self.equilibrium_at(v, near)?;
+                near = Some(e.ph);
+                let step_u8 = u8::try_from(step).unwrap_or(u8::MAX);
+                if out.push(EquivalencePoint { titrant_l: v, ph: e.ph, system: c.system.key, step: step_u8 }).is_err() {
+                    break;
+                }
+            }
+        }
+        Ok(())
+    }
+}
+
+/// Equivalence (inflection) points found on a computed or measured curve: local maxima of
+/// |dpH/dV| that stand out by [`INFLECTION_PROMINENCE`], located between points by fitting a
+/// parabola through the three slopes around the maximum. pH at the point by linear
+/// interpolation. O(K²) for K points; writes at most `E`.
+pub fn inflections<R: Real, const E: usize>(curve: &[CurvePoint<R>], out: &mut Vec<EquivalencePoint<R>, E>) {
+    out.clear();
+    let slope = |i: usize| -> Option<(R, R)> {
+        let a = curve.get(i)?;
+        let b = curve.get(i + 1)?;
+        let dv = b.titrant_l - a.titrant_l;
+        if dv <= R::ZERO {
+            return None;
+        }
+        Some(((a.titrant_l + b.titrant_l) * R::from_f64(0.5), ((b.ph - a.ph) / dv).abs()))
+    };
+    let n = curve.len().saturating_sub(1); // number of segments
+    for i in 0..n {
+        let Some((m, s)) = slope(i) else { continue };
+        let left = if i > 0 { slope(i - 1) } else { None };
+        let right = slope(i + 1);
+        let is_max = left.is_none_or(|(_, l)| s >= l) && right.is_none_or(|(_, r)| s > r);
+        if !is_max || s <= R::ZERO {
+            continue;
+        }
+        // Flattest slope on each side before the curve gets steeper than this maximum again.
+        let mut left_min = s;
+        for j in (0..i).rev() {
+            let Some((_, sj)) = slope(j) else { break };
+            if sj > s {
+                break;
+            }
+            left_min = left_min.min(sj);
+        }
+        let mut right_min = s;
+        for j in (i + 1)..n {
+            let Some((_, sj)) = slope(j) else { break };
+            if sj > s {
+                break;
+            }
+            right_min = right_min.min(sj);
+        }
+        let prominence = R::from_f64(INFLECTION_PROMINENCE);
+        if s < prominence * left_min.max(right_min) {
+            continue;
+        }
+        // Parabola through (m−, s−), (m, s), (m+, s+): vertex abscissa.
+        let v = match (left, right) {
+            (Some((ml, sl)), Some((mr, sr))) => {
+                let d1 = (s - sl) / (m - ml);
+                let d2 = (sr - s) / (mr - m);
+                if d2 < d1 {
+                    // Concave: vertex of the parabola through the three points, kept between them.
+                    parabola_vertex(ml, sl, m, s, mr, sr).unwrap_or(m).max(ml).min(mr)
+                } else {
+                    m
+                }
+            }
+            _ => m,
+        };
+        let ph = interpolate_ph(curve, v);
+        if out.push(EquivalencePoint { titrant_l: v, ph, system: "", step: 0 }).is_err() {
+            break;
+        }
+    }
+}
+
+fn parabola_vertex<R: Real>(x0: R, y0: R, x1: R, y1: R, x2: R, y2: R) -> Option<R> {
+    let denom = (x0 - x1) * (x0 - x2) * (x1 - x2);
+    if denom == R::ZERO {
+        return None;
+    }
+    let a = (x2 * (y1 - y0) + x1 * (y0 - y2) + x0 * (y2 - y1)) / denom;
+    let b = (x2 * x2 * (y0 - y1) + x1 * x1 * (y2 - y0) + x0 * x0 * (y1 - y2)) / denom;
+    if a == R::ZERO {
+        return None;
+    }
+    let v = -b / (R::from_f64(2.0) * a);
+    if v.is_finite() { Some(v) } else { None }
+}
+
+/// pH on the curve at `titrant_l` by linear interpolation (clamped to the ends).
+pub fn interpolate_ph<R: Real>(curve: &[CurvePoint<R>], titrant_l: R) -> R {
+    let mut prev: Option<&CurvePoint<R>> = None;
+    for p in curve {
+        if p.titrant_l >= titrant_l {
+            return match prev {
+                Some(a) if p.titrant_l > a.titrant_l => {
+                    a.ph + (p.ph - a.ph) * (titrant_l - a.titrant_l) / (p.titrant_l - a.titrant_l)
+                }
+                _ => p.ph,
+            };
+        }
+        prev = Some(p);
+    }
+    prev.map_or(R::ZERO, |p| p.ph)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::chem::Activity;
+    use crate::units::Celsius;
+
+    fn ideal<const N: usize>() -> Solution<f64, N> {
+        Solution::new(Celsius::standard(), Activity::Ideal)
+    }
+
+    #[test]
+    fn strong_acid_curve_matches_openstax_example() {
+        // OpenStax "Chemistry 2e" §14.7, example "Calculating pH for Titration Solutions: Strong
+        // Acid/Strong Base" (checked, read in the book's public source): 25.00 mL 0.100 M HCl
+        // with 0.100 M NaOH. Printed: pH 1.000 at 0 mL, [H3O+] 0.0333 M at 12.50 mL, pH 7.00 at
+        // 25.00 mL, pH 12.30 at 37.50 mL. The book uses Kw = 1.0e-14; the model's pKw(25 °C)
+        // is 13.995, which moves the alkaline value by 0.005 — inside the printed rounding.
+        let mut sample = ideal::<2>();
+        sample.add_formula("HCl", 0.100).unwrap();
+        let mut titrant = ideal::<1>();
+        titrant.add_formula("NaOH", 0.100).unwrap();
+        let t = Titration { sample: &sample, sample_volume_l: 0.025, titrant: &titrant };
+        let ph = |ml: f64| t.equilibrium_at(ml / 1000.0, None).unwrap().ph;
+        assert!((ph(0.0) - 1.000).abs() < 0.0005);
+        assert!((10f64.powf(-ph(12.5)) - 0.0333).abs() < 0.00005);
+        assert!((ph(25.0) - 7.00).abs() < 0.005);
+        assert!((ph(37.5) - 12.30).abs() < 0.006);
+        // Curve and both kinds of equivalence point: 25.00 mL.
+        let mut c: Vec<CurvePoint<f64>, 64> = Vec::new();
+        t.curve(0.050, &mut c).unwrap();
+        assert_eq!(c.len(), 64);
+        assert!(c.windows(2).all(|w| w[0].titrant_l < w[1].titrant_l && w[0].ph <= w[1].ph));
+        let mut eq: Vec<EquivalencePoint<f64>, 4> = Vec::new();
+        inflections(&c, &mut eq);
+        assert_eq!(eq.len(), 1, "{eq:?}");
+        assert!((eq[0].titrant_l - 0.025).abs() < 2e-5, "{:?}", eq[0]);
+    }
+
+    #[test]
+    fn nitric_acid_curve_matches_openstax_check_your_learning() {
+        // OpenStax "Chemistry 2e" §14.7, same example, Check Your Learning (checked): 50.0 mL
+        // 0.100 M HNO3 with 0.200 M NaOH: pH 1.000 at 0 mL, 1.5111 at 15.0 mL, 7 at 25.0 mL,
+        // 12.523 at 40.0 mL (book Kw 1.0e-14; model pKw 13.995, so ±0.006 at 40 mL).
+        let mut sample = ideal::<2>();
+        sample.add_formula("HNO3", 0.100).unwrap();
+        let mut titrant = ideal::<1>();
+        titrant.add_formula("NaOH", 0.200).unwrap();
+        let t = Titration { sample: &sample, sample_volume_l: 0.050, titrant: &titrant };
+        let ph = |ml: f64| t.equilibrium_at(ml / 1000.0, None).unwrap().ph;
+        assert!((ph(0.0) - 1.000).abs() < 0.0005);
+        // Exact stoichiometry gives −log10(2 mmol / 65 mL) = 1.5119; the printed 1.5111 carries an
+        // intermediate rounding, so this point is checked to 0.001.
+        assert!((ph(15.0) - 1.5111).abs() < 0.001);
+        assert!((ph(25.0) - 7.0).abs() < 0.005);
+        assert!((ph(40.0) - 12.523).abs() < 0.006);
+    }
+
+    #[test]
+    fn weak_acid_equivalence_is_the_salt_ph() {
+        // Formic acid (plating-shop descaler rinse, invented) titrated with 0.1 M NaOH: the model
+        // equivalence point sits where the salt sodium formate alone would be, at its pH.
+        let mut sample = ideal::<2>();
+        sample.add_formula("HCOOH", 0.05).unwrap();
+        let mut titrant = ideal::<1>();
+        titrant.add_formula("NaOH", 0.1).unwrap();
+        let t = Titration { sample: &sample, sample_volume_l: 0.1, titrant: &titrant };
+        let mut eq: Vec<EquivalencePoint<f64>, 4> = Vec::new();
+        t.model_equivalence_points(0.1, &mut eq).unwrap();
+        assert_eq!(eq.len(), 1);
+        assert!((eq[0].titrant_l - 0.05).abs() < 1e-12);
+        assert_eq!((eq[0].system, eq[0].step), ("formate", 1));
+        let salt = crate::chem::salt::analyse("HCOONa", 0.05 / 1.5, Celsius::standard(), Activity::Ideal).unwrap();
+        assert!((eq[0].ph - salt.equilibrium.ph).abs() < 1e-6, "{} vs {}", eq[0].ph, salt.equilibrium.ph);
+        assert!(eq[0].ph > 7.5, "a weak acid's equivalence point is basic");
+        // The curve finds the same point.
+        let mut c: Vec<CurvePoint<f64>, 96> = Vec::new();
+        t.curve(0.1, &mut c).unwrap();
+        let mut found: Vec<EquivalencePoint<f64>, 4> = Vec::new();
+        inflections(&c, &mut found);
+        assert_eq!(found.len(), 1, "{found:?}");
+        assert!((found[0].titrant_l - 0.05).abs() < 2e-4, "{:?}", found[0]);
+    }
+
+    #[test]
+    fn phosphoric_acid_has_two_visible_equivalence_points() {
+        let mut sample = ideal::<2>();
+        sample.add_formula("H3PO4", 0.01).unwrap();
+        let mut titrant = ideal::<1>();
+        titrant.add_formula("NaOH", 0.1).unwrap();
+        let t = Titration { sample: &sample, sample_volume_l: 0.1, titrant: &titrant };
+        let mut model: Vec<EquivalencePoint<f64>, 4> = Vec::new();
+        t.model_equivalence_points(0.035, &mut model).unwrap();
+        assert_eq!(model.len(), 3); // 10, 20 and 30 mL
+        let mut c: Vec<CurvePoint<f64>, 128> = Vec::new();
+        t.curve(0.035, &mut c).unwrap();
+        let mut found: Vec<EquivalencePoint<f64>, 4> = Vec::new();
+        inflections(&c, &mut found);
+        // The third step (pKa 12.35) makes no inflection in water: two are found.
+        assert_eq!(found.len(), 2, "{found:?}");
+        for (f, m) in found.iter().zip(model.iter()) {
+            assert!((f.titrant_l - m.titrant_l).abs() < 3e-4, "{f:?} vs {m:?}");
+        }
+    }
+
+    #[test]
+    fn strong_acid_level_comes_before_the_carbonate_steps() {
+        // Acidified bicarbonate rinse (invented): 2 mM HCl over 1 mM NaHCO3, 0.1 L, 0.01 M NaOH.
+        let mut sample = ideal::<2>();
+        sample.add_formula("HCl", 0.002).unwrap();
+        sample.add_formula("NaHCO3", 0.001).unwrap();
+        let mut titrant = ideal::<1>();
+        titrant.add_formula("NaOH", 0.01).unwrap();
+        let t = Titration { sample: &sample, sample_volume_l: 0.1, titrant: &titrant };
+        let mut eq: Vec<EquivalencePoint<f64>, 4> = Vec::new();
+        t.model_equivalence_points(0.05, &mut eq).unwrap();
+        let got: std::vec::Vec<(&str, u8, f64)> = eq.iter().map(|e| (e.system, e.step, e.titrant_l * 1000.0)).collect();
+        assert_eq!(got.len(), 3, "{got:?}");
+        for ((sys, step, ml), (esys, estep, eml)) in
+            got.iter().zip([("strong", 0, 10.0), ("carbonate", 1, 20.0), ("carbonate", 2, 30.0)])
+        {
+            assert_eq!((*sys, *step), (esys, estep));
+            assert!((ml - eml).abs() < 1e-9, "{ml} vs {eml}");
+        }
+        // CO2 solution at the first point is acidic, bicarbonate at the second is near 8.3.
+        assert!(eq[0].ph < 5.5 && (eq[1].ph - 8.3).abs() < 0.3, "{eq:?}");
+    }
+
+    #[test]
+    fn invalid_ranges_are_refused() {
+        let sample = ideal::<1>();
+        let titrant = ideal::<1>();
+        let t = Titration { sample: &sample, sample_volume_l: 0.0, titrant: &titrant };
+        let mut c: Vec<CurvePoint<f64>, 8> = Vec::new();
+        assert_eq!(t.curve(0.01, &mut c), Err(CurveError::InvalidRange));
+        let t = Titration { sample: &sample, sample_volume_l: 0.1, titrant: &titrant };
+        assert_eq!(t.curve(f64::NAN, &mut c), Err(CurveError::InvalidRange));
+    }
+}
