@@ -328,6 +328,12 @@ pub fn analyse_substance<R: Real>(
     })
 }
 
+/// The one-ion formulas neglect water; when the ion supplies less H⁺ (or OH⁻) than water
+/// itself (√(K·C) < √Kw) no such formula applies and none is reported.
+fn above_water<R: Real>(x: R, kw: R) -> Option<R> {
+    if x >= kw.sqrt() { Some(x) } else { None }
+}
+
 fn approximate<R: Real>(
     cation: &IonReport<R>,
     anion: &IonReport<R>,
@@ -342,14 +348,14 @@ fn approximate<R: Real>(
     let (kind, h, ratio) = match (cation.action, anion.action) {
         (IonAction::Acid, IonAction::Nothing) => {
             let h = (cation.ka? * cc).sqrt();
-            (ApproximationKind::WeakAcid, h, h / cc)
+            (ApproximationKind::WeakAcid, above_water(h, kw)?, h / cc)
         }
         (IonAction::Nothing, IonAction::Acid) => {
             let h = (anion.ka? * ca).sqrt();
-            (ApproximationKind::WeakAcid, h, h / ca)
+            (ApproximationKind::WeakAcid, above_water(h, kw)?, h / ca)
         }
         (IonAction::Nothing, IonAction::Base) => {
-            let oh = (anion.kb? * ca).sqrt();
+            let oh = above_water((anion.kb? * ca).sqrt(), kw)?;
             (ApproximationKind::WeakBase, kw / oh, oh / ca)
         }
         (IonAction::Nothing, IonAction::Amphiprotic) => {
@@ -433,6 +439,8 @@ mod tests {
         let p = at25("Na3PO4", 0.01);
         let a = p.approximation.unwrap();
         assert!(!a.valid && a.error_ph.abs() > 0.05, "{a:?}");
+        // So dilute that water dominates: no square-root formula (it would give nonsense).
+        assert!(at25("NaOCl", 1e-12).approximation.is_none());
         // Borax is not a simple salt: no square-root formula.
         assert!(at25("Na2B4O7", 0.01).approximation.is_none());
     }

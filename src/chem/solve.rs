@@ -321,7 +321,8 @@ impl<R: Real, const N: usize> Solution<R, N> {
     ///
     /// Phase 1 (at most [`bisection_iterations`] iterations): guarded Newton. The Newton step
     /// is taken when it stays inside the bracket and the iteration is converging (the charge
-    /// excess or the step at least halved since the previous iteration). Otherwise the solver
+    /// excess or the step at least halved since the previous iteration); a step within the
+    /// tolerance ends the solve whatever the bracket says. Otherwise the solver
     /// bisects the bracket, or, while the root has only been bounded on one side, steps
     /// [`EXPANSION_STEP_PH`] towards it. Phase 2: plain bisection of the bracket phase 1 left,
     /// at most [`bisection_iterations`] more. Hence ≤ [`max_ph_iterations`] in all.
@@ -356,7 +357,12 @@ impl<R: Real, const N: usize> Solution<R, N> {
                 let n = x + step;
                 let converging =
                     previous.is_none_or(|(pf, ps)| e.excess.abs() <= pf.abs() * half || step.abs() <= ps.abs() * half);
-                if n > lo && n < hi && converging {
+                if step.abs() <= tol {
+                    // Converged: accept x below. Tested before the bracket because a step under
+                    // half an ulp of x rounds to x itself, which is now a bracket edge, and the
+                    // strict test would send the solver walking away from the root.
+                    n
+                } else if n > lo && n < hi && converging {
                     n
                 } else if lo_seen && hi_seen {
                     bisect

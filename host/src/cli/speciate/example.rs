@@ -1,0 +1,27 @@
+//! The built-in `speciate --example` scenario (invented data).
+
+use super::input::SpeciateInput;
+use crate::cli::CliError;
+use crate::cli::args;
+use crate::cli::conditions::Conditions;
+
+/// First line of the example's table.
+pub const TITLE: &str = "Built-in example (invented): rinse water after the pickling line of a fictional plating shop";
+
+/// Temperature of the example, °C.
+pub const TEMPERATURE_C: f64 = 18.0;
+
+/// What the rinse water carries, mol/L: bicarbonate alkalinity of the make-up water, sulfuric
+/// acid dragged out of the pickling line, and phosphate from an alkaline cleaner.
+pub const DISSOLVED: [(&str, f64); 3] = [("NaHCO3", 0.002), ("H2SO4", 0.0006), ("Na2HPO4", 0.0003)];
+
+/// The example request; `--temperature-c` / `--activity` values, when given, override its
+/// conditions (18 °C, Davies).
+pub fn input(temperature_c: Option<&str>, activity: Option<&str>) -> Result<SpeciateInput, CliError> {
+    let t = match temperature_c {
+        Some(t) => args::number("--temperature-c", t)?,
+        None => TEMPERATURE_C,
+    };
+    let entries = DISSOLVED.iter().map(|(f, c)| ((*f).to_owned(), *c)).collect();
+    SpeciateInput::new(Conditions::new(Some(t), activity)?, entries)
+}

@@ -1,0 +1,130 @@
+//! What `speciate` is asked to solve: conditions and dissolved substances, from JSON or flags.
+
+use phdose::chem::Substance;
+use phdose::chem::substance;
+use serde::Deserialize;
+
+use crate::cli::CliError;
+use crate::cli::args;
+use crate::cli::conditions::Conditions;
+use crate::cli::json::{self, Entries};
+
+/// Shape of the JSON request, shown when stdin is empty.
+pub const JSON_EXAMPLE: &str =
+    r#"{"temperature_c": 25.0, "activity": "davies", "dissolved": {"NaHCO3": 0.002, "HCl": 0.001}}"#;
+
+/// One dissolved substance.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Dissolved {
+    /// The key as the user wrote it ("sodium bicarbonate").
+    pub given_as: String,
+    /// The substance it names.
+    pub substance: &'static Substance,
+    /// Amount dissolved, mol/L (checked by the solution when added).
+    pub mol_per_l: f64,
+}
+
+/// A complete `speciate` request.
+#[derive(Clone, Debug, PartialEq)]
+pub struct SpeciateInput {
+    /// Temperature and activity model.
+    pub conditions: Conditions,
+    /// Substances in the order given.
+    pub dissolved: Vec<Dissolved>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct Request {
+    #[serde(default)]
+    temperature_c: Option<f64>,
+    #[serde(default)]
+    activity: Option<String>,
+    dissolved: Entries,
+}
+
+impl SpeciateInput {
+    /// Resolves every substance name; refuses unknown names and a substance named twice.
+    pub fn new(conditions: Conditions, entries: Vec<(String, f64)>) -> Result<Self, CliError> {
+        let mut dissolved: Vec<Dissolved> = Vec::with_capacity(entries.len());
+        for (given_as, mol_per_l) in entries {
+            let substance = substance::find(&given_as).map_err(|e| CliError::new(format!("'{given_as}': {e}")))?;
+            if let Some(first) = dissolved.iter().find(|d| d.substance.formula == substance.formula) {
+                return Err(CliError::new(format!(
+                    "{} is given twice ('{}' and '{given_as}'); give each substance once",
+                    substance.formula, first.given_as
+                )));
+            }
+            dissolved.push(Dissolved { given_as, substance, mol_per_l });
+        }
+        Ok(Self { conditions, dissolved })
+    }
+
+    /// From the JSON request text.
+    pub fn from_json(text: &str) -> Result<Self, CliError> {
+        let r: Request = json::parse(text, JSON_EXAMPLE)?;
+        let conditions = Conditions::new(r.temperature_c, r.activity.as_deref())?;
+        Self::new(conditions, r.dissolved.0)
+    }
+
+    /// From `SUBSTANCE=MOL_PER_L` arguments and the optional flag values.
+    pub fn from_flags(
+        positionals: &[String],
+        temperature_c: Option<&str>,
+        activity: Option<&str>,
+    ) -> Result<Self, CliError> {
+        if positionals.is_empty() {
+            return Err(CliError::new(
+                "nothing dissolved: give SUBSTANCE=MOL_PER_L arguments (e.g. NaHCO3=0.002), or --example",
+            ));
+        }
+        let mut entries = Vec::with_capacity(positionals.len());
+        for p in positionals {
+            let Some((name, amount)) = p.rsplit_once('=') else {
+                return Err(CliError::new(format!("expected SUBSTANCE=MOL_PER_L, got '{p}'")));
+            };
+            let name = name.trim();
+            entries.push((name.to_owned(), args::number(&format!("amount of {name}"), amount)?));
+        }
+        let t = temperature_c.map(|t| args::number("--temperature-c", t)).transpose()?;
+        Self::new(Conditions::new(t, activity)?, entries)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    #![allow(clippy::unwrap_used)]
+    use super::*;
+    use phdose::chem::Activity;
+
+    #[test]
+    fn json_defaults_and_names() {
+        let i = SpeciateInput::from_json(r#"{"dissolved": {"sodium bicarbonate": 0.002}}"#).unwrap();
+        assert_eq!(i.conditions, Conditions::new(None, None).unwrap());
+        assert_eq!(i.dissolved.len(), 1);
+        assert_eq!(i.dissolved.first().map(|d| d.substance.formula), Some("NaHCO3"));
+    }
+
+    #[test]
+    fn flags() {
+        let args = ["NaHCO3=2e-3".to_owned(), "H2SO4=0.0006".to_owned()];
+        let i = SpeciateInput::from_flags(&args, Some("18"), Some("ideal")).unwrap();
+        assert_eq!(i.conditions.activity, Activity::Ideal);
+        assert_eq!(i.dissolved.iter().map(|d| d.mol_per_l).collect::<Vec<_>>(), vec![2e-3, 6e-4]);
+        assert!(SpeciateInput::from_flags(&["NaHCO3".to_owned()], None, None).is_err());
+        assert!(SpeciateInput::from_flags(&[], None, None).is_err());
+    }
+
+    #[test]
+    fn same_substance_twice_is_refused() {
+        let e = SpeciateInput::from_json(r#"{"dissolved": {"NaHCO3": 0.001, "Sodium Bicarbonate": 0.001}}"#);
+        assert!(e.unwrap_err().message().contains("given twice"));
+    }
+
+    #[test]
+    fn unknown_fields_and_substances_are_refused() {
+        assert!(SpeciateInput::from_json(r#"{"temprature_c": 18, "dissolved": {}}"#).is_err());
+        let e = SpeciateInput::from_json(r#"{"dissolved": {"NaXYZ": 0.001}}"#).unwrap_err();
+        assert!(e.message().contains("known formulas") && e.message().contains("NaHCO3"));
+    }
+}

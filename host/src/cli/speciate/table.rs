@@ -1,0 +1,67 @@
+//! The readable `speciate` table.
+
+use std::fmt::Write;
+
+use super::report::SpeciateReport;
+use crate::cli::caution::CAUTION;
+use crate::cli::format::{fixed, percent, sci};
+
+const LABEL: usize = 18;
+const VALUE: usize = 12;
+
+/// Renders the report; `title` replaces the default first line (used by `--example`).
+pub fn render(r: &SpeciateReport, title: Option<&str>) -> String {
+    let c = r.conditions();
+    let eq = &r.equilibrium;
+    let activity = match c.activity_name() {
+        "ideal" => "ideal activities (γ = 1)",
+        _ => "Davies activities",
+    };
+    let mut s = String::new();
+    let heading = format!("Speciation at {:.1} °C, {activity}", c.celsius());
+    match title {
+        Some(t) => {
+            let _ = writeln!(s, "{t}");
+            let _ = writeln!(s, "{heading}");
+        }
+        None => {
+            let _ = writeln!(s, "{heading}");
+        }
+    }
+    let dissolved: Vec<String> =
+        r.input.dissolved.iter().map(|d| format!("{} {} mol/L", d.substance.formula, sci(d.mol_per_l))).collect();
+    let dissolved = if dissolved.is_empty() { "nothing (pure water)".to_owned() } else { dissolved.join(", ") };
+    let _ = writeln!(s, "{:<LABEL$}{dissolved}", "dissolved");
+    let _ = writeln!(s);
+    let _ =
+        writeln!(s, "{:<LABEL$}{}   (neutral {} at this temperature)", "pH", fixed(eq.ph, 3), fixed(r.pkw / 2.0, 2));
+    let _ = writeln!(s, "{:<LABEL$}{} mol/L", "ionic strength", sci(eq.ionic_strength_mol_per_l));
+    let _ = writeln!(s, "{:<LABEL$}{} mol/L per pH unit", "buffer capacity", sci(eq.buffer_capacity_mol_per_l_per_ph));
+    let _ = writeln!(s, "{:<LABEL$}{}", "pKw", fixed(r.pkw, 3));
+    let _ = writeln!(
+        s,
+        "{:<LABEL$}{} iterations, charge residual {} eq/L",
+        "solver",
+        eq.iterations,
+        sci(eq.residual_eq_per_l)
+    );
+    let _ = writeln!(s);
+    let _ = writeln!(s, "{:<LABEL$}{:>VALUE$}   share", "species", "mol/L");
+    let _ = writeln!(s, "{:<LABEL$}{:>VALUE$}", "H+", sci(r.h_mol_per_l));
+    let _ = writeln!(s, "{:<LABEL$}{:>VALUE$}", "OH-", sci(r.oh_mol_per_l));
+    for sys in &r.systems {
+        let pka: Vec<String> = sys.pka.iter().map(|p| fixed(*p, 2)).collect();
+        let _ = writeln!(s, "{:<LABEL$}{:>VALUE$}   total (pKa {})", sys.key, sci(sys.total_mol_per_l), pka.join(", "));
+        for f in &sys.forms {
+            let _ =
+                writeln!(s, "  {:<w$}{:>VALUE$}   {}", f.formula, sci(f.mol_per_l), percent(f.fraction), w = LABEL - 2);
+        }
+    }
+    if !r.strong_ions.is_empty() {
+        let ions: Vec<String> = r.strong_ions.iter().map(|i| format!("{} {}", i.formula, sci(i.mol_per_l))).collect();
+        let _ = writeln!(s, "{:<LABEL$}{} mol/L (inert)", "strong ions", ions.join(", "));
+    }
+    let _ = writeln!(s);
+    let _ = writeln!(s, "{CAUTION}");
+    s
+}
