@@ -1,11 +1,14 @@
-//! Titration and dose models on top of [`crate::chem`]: streams and mixing, commercial reagents,
-//! the inverse dose for a setpoint (feed-forward) with process gain and boot checks.
+//! Titration and dose models on top of [`crate::chem`]: streams and mixing ([`stream`]),
+//! commercial reagents ([`reagent`]), titration curves and equivalence points ([`curve`]), the
+//! dose for a setpoint with process gain and boot checks ([`dose`]), alkalinity ([`alkalinity`]),
+//! influent characterisation by Levenberg–Marquardt ([`fit`]) and stage advice ([`stages`]).
 
 pub mod alkalinity;
 pub mod curve;
 pub mod dose;
 pub mod fit;
 pub mod reagent;
+pub mod stages;
 pub mod stream;
 
 pub use curve::{CurvePoint, EquivalencePoint, Titration, inflections};
