@@ -17,9 +17,14 @@ pub const TOTAL_ENDPOINT_PH: f64 = 4.5;
 pub const LOW_ALKALINITY_OFFSET_PH: f64 = 0.3;
 /// mg of CaCO3 per milliequivalent: M(CaCO3)/2 = 100.086/2 (IUPAC atomic weights, calc).
 pub const MG_CACO3_PER_MEQ: f64 = 50.043;
-/// Gran method: titration points with pH at or below this are used (past the total-alkalinity
-/// endpoint, where excess strong acid dominates; common practice, no source).
+/// Gran method, default window: points with pH in [`GRAN_MIN_PH`, `GRAN_MAX_PH`] are used —
+/// past the total-alkalinity endpoint, where excess strong acid dominates. The 3–4 window is the
+/// default of the Calkulate library (Humphreys & Matthews, v23.7.1, `solve_pH_gran`); the lower
+/// limit keeps points where a sulfuric-acid titrant is partly HSO4⁻ (which F does not count,
+/// so the line bends and the alkalinity reads low) out of the fit.
 pub const GRAN_MAX_PH: f64 = 4.0;
+/// Lower end of the default Gran window, pH (see [`GRAN_MAX_PH`]).
+pub const GRAN_MIN_PH: f64 = 3.0;
 
 /// mmol/L of charge (meq/L) to mg/L as CaCO3.
 pub fn mg_per_l_as_caco3<R: Real>(meq_per_l: R) -> R {
@@ -96,7 +101,7 @@ pub enum TitrationDataError {
     InvalidSetup,
     /// The data never cross the endpoint (or are not in ascending titrant order).
     EndpointNotReached,
-    /// Fewer than three usable points below the Gran limit, or they lie on no usable line.
+    /// Fewer than three usable points in the Gran window, or they lie on no usable line.
     TooFewGranPoints,
 }
 
@@ -105,7 +110,7 @@ impl core::fmt::Display for TitrationDataError {
         f.write_str(match self {
             Self::InvalidSetup => "sample volume and titrant normality must be finite and positive",
             Self::EndpointNotReached => "the titration data do not cross the endpoint",
-            Self::TooFewGranPoints => "the Gran method needs at least three points below pH 4.0 on a falling line",
+            Self::TooFewGranPoints => "the Gran method needs at least three points in its pH window on a falling line",
         })
     }
 }
@@ -180,15 +185,27 @@ pub struct Gran<R: Real> {
 
 /// The Gran method (Gran 1952, Analyst 77, 661; from memory): past the endpoint,
 /// F = (V0 + v)·10^(−pH) = N·(v − v_e)/γ is linear in v; its zero is the equivalence volume.
-/// Least squares over the points with pH ≤ [`GRAN_MAX_PH`]. One pass over the data.
+/// Least squares over the points with pH in [[`GRAN_MIN_PH`], [`GRAN_MAX_PH`]]. One pass.
 pub fn gran<R: Real>(
     data: &[AcidPoint<R>],
     sample_volume_l: R,
     normality_eq_per_l: R,
 ) -> Result<Gran<R>, TitrationDataError> {
+    gran_in_window(data, sample_volume_l, normality_eq_per_l, R::from_f64(GRAN_MIN_PH), R::from_f64(GRAN_MAX_PH))
+}
+
+/// [`gran`] over the points with pH in [`min_ph`, `max_ph`] (pass −∞ for no lower limit).
+pub fn gran_in_window<R: Real>(
+    data: &[AcidPoint<R>],
+    sample_volume_l: R,
+    normality_eq_per_l: R,
+    min_ph: R,
+    max_ph: R,
+) -> Result<Gran<R>, TitrationDataError> {
     check_setup(sample_volume_l, normality_eq_per_l)?;
     let (mut n, mut sx, mut sy, mut sxx, mut sxy) = (0_u32, R::ZERO, R::ZERO, R::ZERO, R::ZERO);
-    for p in data.iter().filter(|p| p.ph <= R::from_f64(GRAN_MAX_PH) && p.ph.is_finite() && p.titrant_l.is_finite()) {
+    let in_window = |p: &&AcidPoint<R>| p.ph <= max_ph && p.ph >= min_ph && p.ph.is_finite() && p.titrant_l.is_finite();
+    for p in data.iter().filter(in_window) {
         let f = (sample_volume_l + p.titrant_l) * (-p.ph).exp10();
         n += 1;
         sx += p.titrant_l;
