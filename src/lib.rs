@@ -43,3 +43,8 @@ pub mod titration;
 pub mod units;
 
 pub use real::Real;
+
+/// The README's Rust examples, compiled and run as doctests.
+#[cfg(doctest)]
+#[doc = include_str!("../README.md")]
+pub struct ReadmeDoctests;
