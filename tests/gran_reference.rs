@@ -204,7 +204,9 @@ fn gran_matches_calkulate_default_window_when_given_its_points() {
 fn f32_gran_stays_close_to_calkulate() {
     // An f32 build (MCU with an FPU) on the same data. f32 carries ε ≈ 1.2e−7; the normal
     // equations cancel about two digits here (n·Σv² − (Σv)² over points a few mL apart near
-    // ~12 mL), so 1e−4 relative leaves wide margin (measured ≤ 1.6e−6).
+    // ~12 mL), so 1e−4 relative leaves wide margin (measured ≤ 1.6e−6). With `fast-math`
+    // 10^(−pH) comes from micromath's exp (≤ 2.4e−3 relative), so the bound is 5e−3 there.
+    let tol = if cfg!(feature = "fast-math") { 5e-3 } else { 1e-4 };
     for (name, d) in ALL {
         let g = gran_in_window(
             &acid_points::<f32>(d, f64::NEG_INFINITY),
@@ -216,7 +218,7 @@ fn f32_gran_stays_close_to_calkulate() {
         .unwrap();
         let dv = rel(f64::from(g.equivalence_l), d.calk_equivalence_l);
         println!("{name} (f32): v_e rel dev {dv:.1e}");
-        assert!(dv < 1e-4, "{name}: f32 v_e {} vs Calkulate {}", g.equivalence_l, d.calk_equivalence_l);
+        assert!(dv < tol, "{name}: f32 v_e {} vs Calkulate {}", g.equivalence_l, d.calk_equivalence_l);
     }
 }
 

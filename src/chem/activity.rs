@@ -27,10 +27,9 @@ pub enum Activity {
 
 /// Debye–Hückel A parameter (log10, molal), kg^½·mol^−½, at temperature `t`.
 /// 0.5108 at 25 °C; 0.4918 at 0 °C; 0.5959 at 100 °C.
+/// Evaluated in f64 whatever `R` is (it runs only when the temperature changes).
 pub fn debye_huckel_a<R: Real>(t: Celsius<R>) -> R {
-    let rho = water::density_kg_per_l(t);
-    let et = water::relative_permittivity(t) * t.kelvin();
-    R::from_f64(1.824_83e6) * rho.sqrt() / (et * et.sqrt())
+    R::from_f64(water::debye_huckel_a_f64(t.celsius().to_f64()))
 }
 
 /// The Davies factor A·(√I/(1+√I) − 0.3·I) such that log10 γ(z) = −factor·z².

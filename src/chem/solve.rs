@@ -30,7 +30,7 @@ pub const EXPANSION_STEP_PH: f64 = 2.0;
 pub const MAX_ACTIVITY_ITERATIONS: u32 = 16;
 
 /// Worst-case iterations of one inner solve for real type `R`: 2·[`bisection_iterations`]
-/// (76 for `f64`, 42 for `f32`).
+/// (76 for `f64`, 42 for `f32`, 36 for `f32` with `fast-math`).
 pub fn max_ph_iterations<R: Real>() -> u32 {
     2 * bisection_iterations::<R>()
 }
@@ -280,6 +280,7 @@ impl<R: Real, const N: usize> Solution<R, N> {
                         self.evaluate(start, af0).ionic_strength
                     }
                 };
+                let mut previous_delta: Option<R> = None;
                 for _round in 0..MAX_ACTIVITY_ITERATIONS {
                     if ionic.to_f64() > DAVIES_MAX_IONIC_STRENGTH {
                         return Err(SolveError::IonicStrengthTooHigh { mol_per_l: ionic.to_f64() });
@@ -305,7 +306,12 @@ impl<R: Real, const N: usize> Solution<R, N> {
                         }
                         return Ok(self.finish(ph, e, total_iterations, af));
                     }
-                    ionic = next;
+                    // Damp the update (average with the last value) when it changes direction:
+                    // the fixed point is then cycling, which noisy f32 arithmetic can cause.
+                    let delta = next - ionic;
+                    let cycling = previous_delta.is_some_and(|p: R| (p > R::ZERO) != (delta > R::ZERO));
+                    previous_delta = Some(delta);
+                    ionic = if cycling { (ionic + next) * R::from_f64(0.5) } else { next };
                     start = ph;
                 }
                 Err(SolveError::ActivityNotConverged)
@@ -463,9 +469,10 @@ mod tests {
     #[test]
     fn iteration_limits_are_what_the_docs_say() {
         assert_eq!(bisection_iterations::<f64>(), 38);
-        assert_eq!(bisection_iterations::<f32>(), 21);
+        // f32: tolerance 1e-5 (1e-4 with `fast-math`).
+        assert_eq!(bisection_iterations::<f32>(), if cfg!(feature = "fast-math") { 18 } else { 21 });
         assert_eq!(max_ph_iterations::<f64>(), 76);
-        assert_eq!(max_ph_iterations::<f32>(), 42);
+        assert_eq!(max_ph_iterations::<f32>(), if cfg!(feature = "fast-math") { 36 } else { 42 });
     }
 
     #[test]

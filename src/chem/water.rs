@@ -3,25 +3,33 @@
 use crate::real::Real;
 use crate::units::Celsius;
 
-/// Density of air-free water at 0.1 MPa, kg/L, from Kell (1975), J. Chem. Eng. Data 20, 97
-/// (coefficients from memory; checked against the IAPWS-95 values 0.999 840 kg/L at 0 °C,
-/// 0.997 047 at 25 °C and 0.958 365 at 100 °C to 5e-6 in `tests` below). Valid 0–100 °C
-/// (the formulation is fitted to 150 °C).
+// Every function here runs when a temperature is set, never inside the solver's iterations,
+// so it is evaluated in f64 with libm whatever `R` is: full accuracy for f32 builds too (and
+// independent of `fast-math`), at the price of soft-float work on an FPU-less or f32-only MCU
+// once per temperature change.
+
+fn density_f64(t: f64) -> f64 {
+    let num = 999.839_52
+        + t * (16.945_176 + t * (-7.987_040_1e-3 + t * (-46.170_461e-6 + t * (105.563_02e-9 + t * -280.542_53e-12))));
+    num / (1.0 + 16.879_850e-3 * t) / 1000.0
+}
+
+/// Density of air-free water at 0.1 MPa, kg/L, from Kell (1975), J. Chem. Eng. Data 20, 97,
+/// Eq. 16 (coefficients checked in two independent code transcriptions; against the IAPWS-95
+/// values 0.999 840 kg/L at 0 °C, 0.997 047 at 25 °C and 0.958 365 at 100 °C it agrees to 5e-6
+/// in `tests` below). Valid 0–100 °C (the formulation is fitted to 150 °C).
 pub fn density_kg_per_l<R: Real>(t: Celsius<R>) -> R {
-    let t = t.celsius();
-    let c = |v: f64| R::from_f64(v);
-    let num = c(999.839_52)
-        + t * (c(16.945_176)
-            + t * (c(-7.987_040_1e-3) + t * (c(-46.170_461e-6) + t * (c(105.563_02e-9) + t * c(-280.542_53e-12)))));
-    num / (c(1.0) + c(16.879_850e-3) * t) / c(1000.0)
+    R::from_f64(density_f64(t.celsius().to_f64()))
+}
+
+fn permittivity_f64(t: f64) -> f64 {
+    87.740 + t * (-0.400_08 + t * (9.398e-4 + t * -1.410e-6))
 }
 
 /// Relative permittivity of water at 0.1 MPa (dimensionless), Malmberg & Maryott (1956),
 /// J. Res. NBS 56, 1: εr = 87.740 − 0.40008 t + 9.398e-4 t² − 1.410e-6 t³, valid 0–100 °C.
 pub fn relative_permittivity<R: Real>(t: Celsius<R>) -> R {
-    let t = t.celsius();
-    let c = |v: f64| R::from_f64(v);
-    c(87.740) + t * (c(-0.400_08) + t * (c(9.398e-4) + t * c(-1.410e-6)))
+    R::from_f64(permittivity_f64(t.celsius().to_f64()))
 }
 
 /// −log10 Kw (molal scale, I → 0) of liquid water at 0.1 MPa.
@@ -30,24 +38,19 @@ pub fn relative_permittivity<R: Real>(t: Celsius<R>) -> R {
 /// (2007), evaluated with the Kell density. Accuracy against the CRC table is ±0.002 over
 /// 0–100 °C (see the tests). Valid 0–100 °C (the range [`Celsius`] admits).
 pub fn pkw<R: Real>(t: Celsius<R>) -> R {
-    let c = |v: f64| R::from_f64(v);
-    let tk = t.kelvin();
-    let rho = density_kg_per_l(t); // kg/L = g/cm³
-    // ρ^(2/3) as the square of a Newton cube root started at 1 (ρ is 0.958–1.000 here, so four
-    // steps reach f64 rounding). Arithmetic only: exp(⅔·ln ρ) with `fast-math` (micromath ln is
-    // ~3e-3 off near 1) put ρ^(2/3) 1.7 % out at 80 °C and pKw 0.014 out.
-    let mut cbrt = R::ONE;
-    for _ in 0..4 {
-        cbrt -= (cbrt * cbrt * cbrt - rho) / (c(3.0) * cbrt * cbrt);
-    }
-    let rho_23 = cbrt * cbrt;
-    let z = rho * (c(-0.864_671) + c(8659.19) / tk + c(-22_786.2) * rho_23 / (tk * tk)).exp();
-    let one = R::ONE;
-    let bracket = (one + z).log10() - z / (z + one) * rho * (c(0.642_044) + c(-56.8534) / tk + c(-0.375_754) * rho);
-    let pkw_gas = c(0.614_15) + c(48_251.33) / tk + c(-67_707.93) / (tk * tk) + c(10_102_100.0) / (tk * tk * tk);
-    // 2·log10(Mw / (kg/mol)) is a constant: evaluated in f64 with libm, not with `R`'s log10,
-    // which under `fast-math` (micromath) is 0.027 off at 0.018 and moved pKw by 0.055.
-    c(-12.0) * bracket + pkw_gas + c(2.0 * libm::log10(0.018_015_268))
+    let tc = t.celsius().to_f64();
+    let tk = tc + crate::units::KELVIN_OFFSET;
+    let rho = density_f64(tc); // kg/L = g/cm³
+    let z = rho * libm::exp(-0.864_671 + 8659.19 / tk + -22_786.2 * libm::pow(rho, 2.0 / 3.0) / (tk * tk));
+    let bracket = libm::log10(1.0 + z) - z / (z + 1.0) * rho * (0.642_044 + -56.8534 / tk + -0.375_754 * rho);
+    let pkw_gas = 0.614_15 + 48_251.33 / tk + -67_707.93 / (tk * tk) + 10_102_100.0 / (tk * tk * tk);
+    R::from_f64(-12.0 * bracket + pkw_gas + 2.0 * libm::log10(0.018_015_268))
+}
+
+/// Debye–Hückel A parameter (log10, molal) at `t`, kg^½·mol^−½: A = 1.82483e6·√ρ/(εr·T)^(3/2).
+pub(crate) fn debye_huckel_a_f64(t: f64) -> f64 {
+    let et = permittivity_f64(t) * (t + crate::units::KELVIN_OFFSET);
+    1.824_83e6 * libm::sqrt(density_f64(t)) / (et * libm::sqrt(et))
 }
 
 #[cfg(test)]
@@ -73,7 +76,8 @@ mod tests {
         for t in [0.0_f64, 10.0, 37.0, 60.0, 99.0] {
             let a = pkw(at(t));
             let b = pkw(Celsius::new(t as f32).unwrap());
-            assert!((a - f64::from(b)).abs() < 2e-4, "{t}: {a} vs {b}");
+            // Computed in f64 for both: only the final rounding to f32 differs.
+            assert!((a - f64::from(b)).abs() < 2e-5, "{t}: {a} vs {b}");
         }
     }
 
