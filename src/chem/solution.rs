@@ -198,7 +198,10 @@ impl<R: Real, const N: usize> Solution<R, N> {
     }
 
     /// Adds `total_mol_per_l` of an acid–base system's total (merged with a system of the
-    /// same key). Does not change the strong-ion charge: adding the fully protonated form.
+    /// same key). The strong-ion charge does not change, so this adds the system as an
+    /// electrically neutral compound whose protons the charge balance accounts for: CO2 for
+    /// carbonate, NH3 for ammonium, H2SO4 for sulfate, H3PO4 for phosphate. Add strong ions
+    /// (or use [`Solution::add_substance`]) for salts.
     pub fn add_system(&mut self, system: &AcidBaseSystem, total_mol_per_l: R) -> Result<(), CompositionError> {
         let amount = check_amount(total_mol_per_l)?;
         system.validate().map_err(CompositionError::InvalidSystem)?;
