@@ -5,6 +5,7 @@
 //! `error: ...` line on stderr otherwise). The program never prints a panic or a backtrace.
 
 mod cli;
+mod plot;
 
 use std::io::Write;
 use std::panic;

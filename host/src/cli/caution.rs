@@ -3,3 +3,7 @@
 /// Short on purpose; the detail is in SAFETY.md.
 pub const CAUTION: &str =
     "Model result only: it does not replace pH measurement or the dosing interlocks (see SAFETY.md).";
+
+/// The caution that ends every readable `plan` (two lines).
+pub const PLAN_CAUTION: &str = "Caution: this plan is a model estimate, not a measurement. Interlocks (flow switch,\n\
+independent pH cut-outs, manual reset) must exist in hardware; see SAFETY.md.";

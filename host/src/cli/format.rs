@@ -27,6 +27,40 @@ pub fn percent(fraction: f64) -> String {
     }
 }
 
+/// `digits` significant digits (at least 1) without trailing zeros: "0.543", "10", "1.27e-5";
+/// plain notation for 1e-3 ≤ |v| < 1e6, scientific outside; "n/a" when not finite.
+pub fn sig(v: f64, digits: usize) -> String {
+    let digits = digits.max(1);
+    if !v.is_finite() {
+        return "n/a".to_owned();
+    }
+    if v == 0.0 {
+        return "0".to_owned();
+    }
+    let a = v.abs();
+    if !(1e-3..1e6).contains(&a) {
+        let s = format!("{v:.p$e}", p = digits - 1);
+        return match s.split_once('e') {
+            Some((m, e)) => format!("{}e{e}", trim_zeros(m)),
+            None => s,
+        };
+    }
+    // Decimals so that `digits` significant digits show; the magnitude is bounded here.
+    let magnitude = a.log10().floor() as i64;
+    let digits_i = i64::try_from(digits).unwrap_or(1);
+    if magnitude >= digits_i {
+        // More integer digits than significant ones: round them away (3888 → "3900").
+        let unit = 10f64.powi(i32::try_from(magnitude - digits_i + 1).unwrap_or(0));
+        return format!("{:.0}", (v / unit).round() * unit);
+    }
+    let decimals = usize::try_from((digits_i - 1 - magnitude).max(0)).unwrap_or(0);
+    trim_zeros(&format!("{v:.decimals$}")).to_owned()
+}
+
+fn trim_zeros(s: &str) -> &str {
+    if s.contains('.') { s.trim_end_matches('0').trim_end_matches('.') } else { s }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -40,5 +74,14 @@ mod tests {
         assert_eq!(percent(0.4312), "43.1 %");
         assert_eq!(percent(1e-6), "<0.1 %");
         assert_eq!(percent(0.0), "0.0 %");
+        assert_eq!(sig(0.54321, 3), "0.543");
+        assert_eq!(sig(10.0, 3), "10");
+        assert_eq!(sig(1.27e-5, 3), "1.27e-5");
+        assert_eq!(sig(-2.5, 2), "-2.5");
+        assert_eq!(sig(7.963, 4), "7.963");
+        assert_eq!(sig(123456.0, 3), "123000");
+        assert_eq!(sig(3888.0, 2), "3900");
+        assert_eq!(sig(1200.0, 6), "1200");
+        assert_eq!(sig(f64::NAN, 3), "n/a");
     }
 }

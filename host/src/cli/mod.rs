@@ -2,11 +2,17 @@
 
 mod args;
 mod caution;
+mod composition;
 mod conditions;
+mod curve;
 mod error;
+mod files;
+mod fit;
 mod format;
 mod help;
 mod json;
+mod plan;
+mod reagent;
 mod salt;
 mod speciate;
 mod substances;
@@ -99,11 +105,12 @@ fn dispatch(argv: &[OsString], stdin: &mut dyn Read, mode: Mode) -> Result<Strin
         "speciate" => speciate::run(rest, mode, stdin),
         "salt" => salt::run(rest, mode, stdin),
         "substances" => substances::run(rest, mode),
+        "plan" => plan::run(rest, mode, stdin),
+        "curve" => curve::run(rest, mode, stdin),
+        "fit" => fit::run(rest, mode, stdin),
         "help" | "--help" | "-h" => help::run(rest),
         "version" | "--version" | "-V" => Ok(format!("phdose {}\n", env!("CARGO_PKG_VERSION"))),
-        other => Err(CliError::new(format!(
-            "unknown command '{other}'; the commands are speciate, salt, substances and help"
-        ))),
+        other => Err(CliError::new(format!("unknown command '{other}'; the commands are {}", help::COMMANDS))),
     }
 }
 

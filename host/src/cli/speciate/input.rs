@@ -1,28 +1,17 @@
 //! What `speciate` is asked to solve: conditions and dissolved substances, from JSON or flags.
 
-use phdose::chem::Substance;
-use phdose::chem::substance;
 use serde::Deserialize;
 
 use crate::cli::CliError;
 use crate::cli::args;
+pub use crate::cli::composition::Dissolved;
+use crate::cli::composition::{self, parse_pairs};
 use crate::cli::conditions::Conditions;
 use crate::cli::json::{self, Entries};
 
 /// Shape of the JSON request, shown when stdin is empty.
 pub const JSON_EXAMPLE: &str =
     r#"{"temperature_c": 25.0, "activity": "davies", "dissolved": {"NaHCO3": 0.002, "HCl": 0.001}}"#;
-
-/// One dissolved substance.
-#[derive(Clone, Debug, PartialEq)]
-pub struct Dissolved {
-    /// The key as the user wrote it ("sodium bicarbonate").
-    pub given_as: String,
-    /// The substance it names.
-    pub substance: &'static Substance,
-    /// Amount dissolved, mol/L (checked by the solution when added).
-    pub mol_per_l: f64,
-}
 
 /// A complete `speciate` request.
 #[derive(Clone, Debug, PartialEq)]
@@ -46,18 +35,7 @@ struct Request {
 impl SpeciateInput {
     /// Resolves every substance name; refuses unknown names and a substance named twice.
     pub fn new(conditions: Conditions, entries: Vec<(String, f64)>) -> Result<Self, CliError> {
-        let mut dissolved: Vec<Dissolved> = Vec::with_capacity(entries.len());
-        for (given_as, mol_per_l) in entries {
-            let substance = substance::find(&given_as).map_err(|e| CliError::new(format!("'{given_as}': {e}")))?;
-            if let Some(first) = dissolved.iter().find(|d| d.substance.formula == substance.formula) {
-                return Err(CliError::new(format!(
-                    "{} is given twice ('{}' and '{given_as}'); give each substance once",
-                    substance.formula, first.given_as
-                )));
-            }
-            dissolved.push(Dissolved { given_as, substance, mol_per_l });
-        }
-        Ok(Self { conditions, dissolved })
+        Ok(Self { conditions, dissolved: composition::resolve(entries)? })
     }
 
     /// From the JSON request text.
@@ -78,14 +56,7 @@ impl SpeciateInput {
                 "nothing dissolved: give SUBSTANCE=MOL_PER_L arguments (e.g. NaHCO3=0.002), or --example",
             ));
         }
-        let mut entries = Vec::with_capacity(positionals.len());
-        for p in positionals {
-            let Some((name, amount)) = p.rsplit_once('=') else {
-                return Err(CliError::new(format!("expected SUBSTANCE=MOL_PER_L, got '{p}'")));
-            };
-            let name = name.trim();
-            entries.push((name.to_owned(), args::number(&format!("amount of {name}"), amount)?));
-        }
+        let entries = parse_pairs(positionals)?;
         let t = temperature_c.map(|t| args::number("--temperature-c", t)).transpose()?;
         Self::new(Conditions::new(t, activity)?, entries)
     }

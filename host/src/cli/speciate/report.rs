@@ -1,19 +1,13 @@
 //! Solving a `speciate` request: composition → equilibrium → speciation, as plain data.
 
+use phdose::chem::Equilibrium;
 use phdose::chem::activity;
 use phdose::chem::substance::Part;
-use phdose::chem::{Equilibrium, Solution};
 
 use super::input::SpeciateInput;
 use crate::cli::CliError;
+use crate::cli::composition::{self, HostSolution};
 use crate::cli::conditions::Conditions;
-
-/// Systems one solution can hold; the catalogue has fewer, so any mix of built-in
-/// substances fits.
-pub const CAPACITY: usize = 16;
-
-/// The host solution type: `f64`, [`CAPACITY`] systems.
-pub type HostSolution = Solution<f64, CAPACITY>;
 
 /// One form of an acid–base system at equilibrium.
 #[derive(Clone, Debug, PartialEq)]
@@ -85,10 +79,7 @@ impl SpeciateReport {
 /// Builds the solution, solves it and speciates it.
 pub fn compute(input: SpeciateInput) -> Result<SpeciateReport, CliError> {
     let c = input.conditions;
-    let mut solution = HostSolution::new(c.temperature, c.activity);
-    for d in &input.dissolved {
-        solution.add_substance(d.substance, d.mol_per_l).map_err(|e| CliError::new(format!("{}: {e}", d.given_as)))?;
-    }
+    let solution: HostSolution = composition::solution(c, &input.dissolved, "")?;
     let equilibrium = solution.solve().map_err(|e| CliError::new(format!("pH solver: {e}")))?;
     let speciation = solution.speciate(&equilibrium);
 

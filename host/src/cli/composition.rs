@@ -1,0 +1,106 @@
+//! Dissolved substances by name, and the solutions built from them: shared by every command
+//! that takes a composition (speciate, plan, curve, fit).
+
+use phdose::chem::{Solution, Substance, substance};
+
+use super::CliError;
+use super::args;
+use super::conditions::Conditions;
+
+/// Systems one host solution can hold; the catalogue has fewer, so any mix of built-in
+/// substances (plus a reagent's) fits.
+pub const CAPACITY: usize = 16;
+
+/// The host solution type: `f64`, [`CAPACITY`] systems.
+pub type HostSolution = Solution<f64, CAPACITY>;
+
+/// One dissolved substance.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Dissolved {
+    /// The key as the user wrote it ("sodium bicarbonate").
+    pub given_as: String,
+    /// The substance it names.
+    pub substance: &'static Substance,
+    /// Amount dissolved, mol/L (checked by the solution when added).
+    pub mol_per_l: f64,
+}
+
+/// Resolves every substance name; refuses unknown names and a substance named twice.
+pub fn resolve(entries: Vec<(String, f64)>) -> Result<Vec<Dissolved>, CliError> {
+    let mut dissolved: Vec<Dissolved> = Vec::with_capacity(entries.len());
+    for (given_as, mol_per_l) in entries {
+        let substance = substance::find(&given_as).map_err(|e| CliError::new(format!("'{given_as}': {e}")))?;
+        if let Some(first) = dissolved.iter().find(|d| d.substance.formula == substance.formula) {
+            return Err(CliError::new(format!(
+                "{} is given twice ('{}' and '{given_as}'); give each substance once",
+                substance.formula, first.given_as
+            )));
+        }
+        dissolved.push(Dissolved { given_as, substance, mol_per_l });
+    }
+    Ok(dissolved)
+}
+
+/// Parses `SUBSTANCE=MOL_PER_L` arguments into (name, amount) pairs.
+pub fn parse_pairs<S: AsRef<str>>(items: &[S]) -> Result<Vec<(String, f64)>, CliError> {
+    let mut entries = Vec::with_capacity(items.len());
+    for item in items {
+        let item = item.as_ref();
+        let Some((name, amount)) = item.rsplit_once('=') else {
+            return Err(CliError::new(format!("expected SUBSTANCE=MOL_PER_L, got '{item}'")));
+        };
+        let name = name.trim();
+        entries.push((name.to_owned(), args::number(&format!("amount of {name}"), amount)?));
+    }
+    Ok(entries)
+}
+
+/// The solution of `dissolved` under `conditions`; `what` ("influent", "sample") prefixes
+/// composition errors.
+pub fn solution<const N: usize>(
+    conditions: Conditions,
+    dissolved: &[Dissolved],
+    what: &str,
+) -> Result<Solution<f64, N>, CliError> {
+    let mut s = Solution::new(conditions.temperature, conditions.activity);
+    for d in dissolved {
+        s.add_substance(d.substance, d.mol_per_l).map_err(|e| {
+            if what.is_empty() {
+                CliError::new(format!("{}: {e}", d.given_as))
+            } else {
+                CliError::new(format!("{what}: {}: {e}", d.given_as))
+            }
+        })?;
+    }
+    Ok(s)
+}
+
+/// "NaHCO3 2.000e-3, HCl 1.000e-3 mol/L", or "nothing (pure water)".
+pub fn describe(dissolved: &[Dissolved]) -> String {
+    if dissolved.is_empty() {
+        return "nothing (pure water)".to_owned();
+    }
+    let parts: Vec<String> =
+        dissolved.iter().map(|d| format!("{} {}", d.substance.formula, super::format::sci(d.mol_per_l))).collect();
+    format!("{} mol/L", parts.join(", "))
+}
+
+#[cfg(test)]
+mod tests {
+    #![allow(clippy::unwrap_used)]
+    use super::*;
+
+    #[test]
+    fn names_pairs_and_solutions() {
+        let d = resolve(parse_pairs(&["sodium bicarbonate=2e-3", "HCl = 0.001"]).unwrap()).unwrap();
+        assert_eq!(d.iter().map(|x| x.substance.formula).collect::<Vec<_>>(), ["NaHCO3", "HCl"]);
+        let s: HostSolution = solution(Conditions::new(None, None).unwrap(), &d, "influent").unwrap();
+        assert!((s.total_of("carbonate") - 2e-3).abs() < 1e-18);
+        assert!(resolve(vec![("HCl".into(), 1.0), ("hydrochloric acid".into(), 1.0)]).is_err());
+        assert!(parse_pairs(&["HCl"]).is_err());
+        let neg = resolve(vec![("HCl".into(), -1.0)]).unwrap();
+        let e = solution::<2>(Conditions::new(None, None).unwrap(), &neg, "influent").unwrap_err();
+        assert!(e.message().starts_with("influent: HCl: "), "{e}");
+        assert_eq!(describe(&[]), "nothing (pure water)");
+    }
+}

@@ -1,0 +1,181 @@
+//! What `curve` is asked: sample, titrant, range and resolution, from JSON or flags.
+
+use serde::Deserialize;
+
+use super::example;
+use crate::cli::CliError;
+use crate::cli::args::{self, Parsed, Spec};
+use crate::cli::composition::{self, Dissolved};
+use crate::cli::conditions::Conditions;
+use crate::cli::json::{self, Entries};
+use crate::cli::reagent::{Reagent, ReagentJson};
+
+/// `--sample-ml`.
+pub const SAMPLE_ML: Spec = Spec { name: "--sample-ml", takes_value: true };
+/// `--titrant`.
+pub const TITRANT: Spec = Spec { name: "--titrant", takes_value: true };
+/// `--max-titrant-ml`.
+pub const MAX_TITRANT_ML: Spec = Spec { name: "--max-titrant-ml", takes_value: true };
+/// `--points`.
+pub const POINTS: Spec = Spec { name: "--points", takes_value: true };
+/// `--csv FILE`.
+pub const CSV: Spec = Spec { name: "--csv", takes_value: true };
+/// `--svg FILE`.
+pub const SVG: Spec = Spec { name: "--svg", takes_value: true };
+
+/// The options that describe a request (refused with `--json`; `--points` also with `--example`).
+pub const REQUEST_FLAGS: [Spec; 5] = [SAMPLE_ML, TITRANT, MAX_TITRANT_ML, args::TEMPERATURE, args::ACTIVITY];
+
+/// Default number of curve points.
+pub const DEFAULT_POINTS: usize = 64;
+/// Largest number of curve points.
+pub const MAX_POINTS: usize = 256;
+/// Point counts must be a multiple of this (the core fills a fixed-capacity vector whose
+/// capacity is a compile-time constant, so the host offers a fixed set of capacities).
+pub const POINTS_STEP: usize = 8;
+
+/// Shape of the JSON request, shown when stdin is empty.
+pub const JSON_EXAMPLE: &str = r#"{"sample": {"volume_l": 0.1, "dissolved": {"NaOH": 0.001, "Na2CO3": 0.002}}, "titrant": {"dissolved": {"HCl": 0.02}}, "max_titrant_l": 0.03, "points": 64}"#;
+
+/// A complete `curve` request.
+#[derive(Clone, Debug, PartialEq)]
+pub struct CurveInput {
+    /// Temperature and activity model.
+    pub conditions: Conditions,
+    /// The sample's composition.
+    pub sample: Vec<Dissolved>,
+    /// Sample volume, L.
+    pub sample_volume_l: f64,
+    /// The titrant.
+    pub titrant: Reagent,
+    /// End of the titration, L of titrant.
+    pub max_titrant_l: f64,
+    /// Number of curve points.
+    pub points: usize,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct Request {
+    #[serde(default)]
+    temperature_c: Option<f64>,
+    #[serde(default)]
+    activity: Option<String>,
+    sample: SampleJson,
+    titrant: ReagentJson,
+    max_titrant_l: f64,
+    #[serde(default)]
+    points: Option<f64>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct SampleJson {
+    volume_l: f64,
+    dissolved: Entries,
+}
+
+/// Checks a point count: a whole number, a multiple of [`POINTS_STEP`] within 8–[`MAX_POINTS`].
+pub fn check_points(points: f64) -> Result<usize, CliError> {
+    let ok = points.is_finite() && points.fract() == 0.0 && (8.0..=MAX_POINTS as f64).contains(&points);
+    let n = if ok { points as usize } else { 0 };
+    if n == 0 || n % POINTS_STEP != 0 {
+        return Err(CliError::new(format!(
+            "points {points} must be a multiple of {POINTS_STEP} from {POINTS_STEP} to {MAX_POINTS} (e.g. 64)"
+        )));
+    }
+    Ok(n)
+}
+
+impl CurveInput {
+    /// Checks the volumes and the point count.
+    pub fn new(
+        conditions: Conditions,
+        sample: Vec<Dissolved>,
+        sample_volume_l: f64,
+        titrant: Reagent,
+        max_titrant_l: f64,
+        points: f64,
+    ) -> Result<Self, CliError> {
+        if !(sample_volume_l.is_finite() && sample_volume_l > 0.0 && sample_volume_l <= 1000.0) {
+            return Err(CliError::new(format!("sample volume {sample_volume_l} L must be above 0 and at most 1000 L")));
+        }
+        if !(max_titrant_l.is_finite() && max_titrant_l > 0.0 && max_titrant_l <= 1000.0) {
+            return Err(CliError::new(format!(
+                "max titrant volume {max_titrant_l} L must be above 0 and at most 1000 L"
+            )));
+        }
+        let points = check_points(points)?;
+        Ok(Self { conditions, sample, sample_volume_l, titrant, max_titrant_l, points })
+    }
+
+    /// From the JSON request text.
+    pub fn from_json(text: &str) -> Result<Self, CliError> {
+        let r: Request = json::parse(text, JSON_EXAMPLE)?;
+        let conditions = Conditions::new(r.temperature_c, r.activity.as_deref())?;
+        let sample = composition::resolve(r.sample.dissolved.0).map_err(|e| CliError::new(format!("sample: {e}")))?;
+        let titrant = Reagent::from_json(r.titrant, "titrant")?;
+        let points = r.points.unwrap_or(DEFAULT_POINTS as f64);
+        Self::new(conditions, sample, r.sample.volume_l, titrant, r.max_titrant_l, points)
+    }
+
+    /// The built-in example; `points` overrides its resolution.
+    pub fn example(points: Option<&str>) -> Result<Self, CliError> {
+        let conditions = Conditions::new(Some(example::TEMPERATURE_C), None)?;
+        let sample = composition::resolve(example::DISSOLVED.iter().map(|(f, c)| ((*f).to_owned(), *c)).collect())?;
+        let titrant = Reagent::dissolved(vec![(example::TITRANT.0.to_owned(), example::TITRANT.1)], "titrant")?;
+        let points = points.map(|p| args::number("--points", p)).transpose()?.unwrap_or(DEFAULT_POINTS as f64);
+        Self::new(conditions, sample, example::SAMPLE_ML / 1000.0, titrant, example::MAX_TITRANT_ML / 1000.0, points)
+    }
+
+    /// From the command line: sample `SUBSTANCE=MOL_PER_L` positionals and the options.
+    pub fn from_flags(p: &Parsed) -> Result<Self, CliError> {
+        if p.positionals.is_empty() {
+            return Err(CliError::new(
+                "no sample: give SUBSTANCE=MOL_PER_L arguments (e.g. NaOH=0.001 Na2CO3=0.002), or --example",
+            ));
+        }
+        let sample = composition::resolve(composition::parse_pairs(&p.positionals)?)
+            .map_err(|e| CliError::new(format!("sample: {e}")))?;
+        let need = |spec: Spec| -> Result<&str, CliError> {
+            p.value(spec).ok_or_else(|| CliError::new(format!("missing {} (or use --example)", spec.name)))
+        };
+        let sample_ml = args::number(SAMPLE_ML.name, need(SAMPLE_ML)?)?;
+        let titrant = Reagent::from_flag(need(TITRANT)?, None, "titrant")?;
+        let max_ml = args::number(MAX_TITRANT_ML.name, need(MAX_TITRANT_ML)?)?;
+        let points = p.value(POINTS).map(|v| args::number("--points", v)).transpose()?;
+        let t = p.value(args::TEMPERATURE).map(|t| args::number("--temperature-c", t)).transpose()?;
+        let conditions = Conditions::new(t, p.value(args::ACTIVITY))?;
+        Self::new(
+            conditions,
+            sample,
+            sample_ml / 1000.0,
+            titrant,
+            max_ml / 1000.0,
+            points.unwrap_or(DEFAULT_POINTS as f64),
+        )
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    #![allow(clippy::unwrap_used)]
+    use super::*;
+
+    #[test]
+    fn point_counts() {
+        assert_eq!(check_points(64.0).unwrap(), 64);
+        assert_eq!(check_points(8.0).unwrap(), 8);
+        assert_eq!(check_points(256.0).unwrap(), 256);
+        for bad in [0.0, 4.0, 63.0, 64.5, 264.0, -64.0, f64::NAN] {
+            assert!(check_points(bad).is_err(), "{bad}");
+        }
+    }
+
+    #[test]
+    fn json_example_parses() {
+        let i = CurveInput::from_json(JSON_EXAMPLE).unwrap();
+        assert_eq!((i.points, i.sample.len()), (64, 2));
+        assert!(CurveInput::from_json(r#"{"sample": {"volume_l": 0, "dissolved": {}}, "titrant": {"dissolved": {"HCl": 0.1}}, "max_titrant_l": 0.01}"#).is_err());
+    }
+}

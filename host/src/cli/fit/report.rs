@@ -1,0 +1,145 @@
+//! Fitting: the starting guess, the Levenberg–Marquardt fit and the fitted model curve.
+
+use heapless::Vec as FixedVec;
+use phdose::chem::Solution;
+use phdose::titration::curve::{CurvePoint, Titration};
+use phdose::titration::fit::{self, Effective, FitError, FitResult, FitSpec, PKA_RANGE};
+
+use super::input::FitInput;
+use crate::cli::CliError;
+use crate::cli::format::{fixed, sig};
+use crate::cli::reagent::ReagentSolution;
+
+/// Systems the fit's own model sample holds (`phdose::titration::fit` uses `Solution<_, 4>`):
+/// the fitted systems plus the titrant's must fit in it.
+pub const FIT_MODEL_CAPACITY: usize = 4;
+/// Starting carbonate total, mol/L.
+pub const START_CARBONATE_MOL_PER_L: f64 = 1e-3;
+/// Starting total of each buffer, mol/L.
+pub const START_BUFFER_MOL_PER_L: f64 = 5e-4;
+/// Points of the fitted model curve drawn in the plot.
+pub const MODEL_CURVE_POINTS: usize = 128;
+
+/// The starting guess and how it was found.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Start {
+    /// The guess.
+    pub effective: Effective<f64>,
+    /// How the strong charge was guessed, in words.
+    pub basis: String,
+}
+
+/// Everything `fit` reports.
+#[derive(Clone, Debug, PartialEq)]
+pub struct FitReport {
+    /// The request.
+    pub input: FitInput,
+    /// Where the fit started.
+    pub start: Start,
+    /// The fit.
+    pub result: FitResult<f64>,
+    /// The fitted model's curve over the data's titrant range, for the plot.
+    pub model_curve: Vec<CurvePoint<f64>>,
+}
+
+/// The volume (mL) where the points cross pH 7, by linear interpolation between the first
+/// pair of neighbours on either side of it.
+pub fn crossing_ml(points_ml: &[(f64, f64)], ph: f64) -> Option<f64> {
+    points_ml.windows(2).find_map(|w| match w {
+        [(v0, p0), (v1, p1)] if (p0 - ph) * (p1 - ph) <= 0.0 && p0 != p1 => {
+            Some(v0 + (ph - p0) * (v1 - v0) / (p1 - p0))
+        }
+        _ => None,
+    })
+}
+
+/// The documented starting guess (see `phdose help fit`).
+pub fn guess(input: &FitInput, titrant: &ReagentSolution) -> Start {
+    let v0 = input.sample_volume_l;
+    let ct = titrant.strong_charge_eq_per_l();
+    let (strong, basis) = match crossing_ml(&input.points_ml, 7.0) {
+        Some(ml) => (-ct * ml / 1000.0 / v0, format!("from the pH 7 crossing at {} mL of titrant", fixed(ml, 2))),
+        None => {
+            let (ml, ph) = input.points_ml.first().copied().unwrap_or((0.0, 7.0));
+            let v = ml / 1000.0;
+            let pkw = titrant.pkw();
+            let (h, oh) = (10f64.powf(-ph), 10f64.powf(ph - pkw));
+            (
+                ((v0 + v) * (oh - h) - ct * v) / v0,
+                format!(
+                    "from the first point (pH {} at {} mL) taken as strong ions and water only",
+                    fixed(ph, 2),
+                    sig(ml, 4)
+                ),
+            )
+        }
+    };
+    let (lo, hi) = input.points_ml.iter().fold((14.0f64, 0.0f64), |(a, b), (_, p)| (a.min(*p), b.max(*p)));
+    let spread = |k: f64, of: f64| (lo + (hi - lo) * k / of).clamp(PKA_RANGE.0, PKA_RANGE.1);
+    let buffers = match input.buffers {
+        0 => [(0.0, 7.0), (0.0, 7.0)],
+        1 => [(START_BUFFER_MOL_PER_L, spread(1.0, 2.0)), (0.0, 7.0)],
+        _ => [(START_BUFFER_MOL_PER_L, spread(1.0, 3.0)), (START_BUFFER_MOL_PER_L, spread(2.0, 3.0))],
+    };
+    let carbonate = if input.carbonate { START_CARBONATE_MOL_PER_L } else { 0.0 };
+    Start { effective: Effective { strong_charge_eq_per_l: strong, carbonate_mol_per_l: carbonate, buffers }, basis }
+}
+
+fn refused(e: FitError) -> CliError {
+    match e {
+        FitError::IllConditioned { parameter } => CliError::new(format!(
+            "ill-conditioned fit: the titration data do not determine the {parameter}; fit fewer unknowns \
+             (--buffers, --carbonate) or titrate over a wider pH range"
+        )),
+        other => CliError::new(format!("fit: {other}")),
+    }
+}
+
+/// Runs the fit and computes the fitted model's curve.
+pub fn compute(input: FitInput) -> Result<FitReport, CliError> {
+    let c = input.conditions;
+    let titrant: ReagentSolution = input.titrant.solution(c, "titrant")?;
+    let fitted = usize::from(input.carbonate) + usize::from(input.buffers);
+    let extra = titrant.components().iter().filter(|k| !(input.carbonate && k.system.key == "carbonate")).count();
+    if fitted + extra > FIT_MODEL_CAPACITY {
+        return Err(CliError::new(format!(
+            "titrant: its {extra} acid-base system(s) plus the {fitted} fitted one(s) exceed the fit model's \
+             {FIT_MODEL_CAPACITY}; use a strong titrant (NaOH, HCl) or fewer buffers"
+        )));
+    }
+    let spec = FitSpec {
+        carbonate: input.carbonate,
+        buffers: input.buffers,
+        sample_volume_l: input.sample_volume_l,
+        temperature: c.temperature,
+        activity: c.activity,
+    };
+    let data: Vec<(f64, f64)> = input.points_ml.iter().map(|(ml, ph)| (ml / 1000.0, *ph)).collect();
+    let start = guess(&input, &titrant);
+    let result = fit::fit(&spec, &titrant, &data, &start.effective).map_err(refused)?;
+
+    let max_l = data.iter().map(|(v, _)| *v).fold(0.0, f64::max);
+    let model_curve = if max_l > 0.0 {
+        let sample: Solution<f64, 8> = result.effective.solution(c.temperature, c.activity);
+        let t = Titration { sample: &sample, sample_volume_l: input.sample_volume_l, titrant: &titrant };
+        let mut out: FixedVec<CurvePoint<f64>, MODEL_CURVE_POINTS> = FixedVec::new();
+        t.curve(max_l, &mut out).map_err(|e| CliError::new(format!("fitted model curve: {e}")))?;
+        out.to_vec()
+    } else {
+        Vec::new()
+    };
+    Ok(FitReport { input, start, result, model_curve })
+}
+
+#[cfg(test)]
+mod tests {
+    #![allow(clippy::unwrap_used)]
+    use super::*;
+
+    #[test]
+    fn crossing() {
+        let pts = [(0.0, 3.0), (1.0, 5.0), (2.0, 9.0), (3.0, 10.0)];
+        assert_eq!(crossing_ml(&pts, 7.0), Some(1.5));
+        assert_eq!(crossing_ml(&pts[..2], 7.0), None);
+    }
+}

@@ -1,0 +1,138 @@
+//! The `plan` JSON document. The first five keys are the stable contract: `reachable`,
+//! `reagent_flow_l_per_h`, `mixture_buffer_capacity`, `gain_ph_per_l_per_h`, `verdicts`.
+
+use std::collections::BTreeMap;
+
+use phdose::titration::DoseCheck;
+use serde::Serialize;
+
+use super::report::{PlanReport, Unreachable};
+use crate::cli::CliError;
+use crate::cli::caution::PLAN_CAUTION;
+use crate::cli::json::{self, Num, opt};
+use crate::cli::reagent::ReagentOut;
+
+/// What the stage advice rests on.
+pub const STAGE_BASIS: &str = "common practice, no checked source: a rule of thumb (influent within 3 pH of the \
+setpoint: 1 stage, within 5: 2, beyond: 3), not a computed result";
+
+#[derive(Serialize)]
+struct Output {
+    reachable: bool,
+    reagent_flow_l_per_h: Option<Num>,
+    mixture_buffer_capacity: Option<Num>,
+    gain_ph_per_l_per_h: Option<Num>,
+    verdicts: Vec<String>,
+    all_clear: bool,
+    setpoint_ph: Num,
+    influent_ph: Num,
+    influent_flow_l_per_h: Num,
+    influent_dissolved: BTreeMap<&'static str, Num>,
+    gain_ph_per_step: Option<Num>,
+    reagent_mol_per_l: Option<Num>,
+    reagent: ReagentOut,
+    mixture_ionic_strength: Option<Num>,
+    rounds: Option<u32>,
+    checks: Vec<CheckOut>,
+    unreachable: Option<UnreachableOut>,
+    stage_advice: Option<StagesOut>,
+    pump: Option<PumpOut>,
+    band_ph: Option<Num>,
+    temperature_c: Num,
+    activity: &'static str,
+    notes: Vec<String>,
+    caution: String,
+}
+
+#[derive(Serialize)]
+#[serde(tag = "kind", rename_all = "snake_case")]
+enum CheckOut {
+    BeyondPump { needed_l_per_h: Num, max_l_per_h: Num },
+    TooSteep { step_delta_ph: Num, band_ph: Num, dilute_reagent_by: Num, nearest_controllable_setpoint_ph: Option<Num> },
+}
+
+#[derive(Serialize)]
+#[serde(tag = "kind", rename_all = "snake_case")]
+enum UnreachableOut {
+    WrongDirection,
+    BeyondReagent { limit_ph: Num },
+}
+
+#[derive(Serialize)]
+struct StagesOut {
+    stages: u8,
+    setpoints_ph: Vec<Num>,
+    excursion_ph: Num,
+    both_directions: bool,
+    basis: &'static str,
+}
+
+#[derive(Serialize)]
+struct PumpOut {
+    max_l_per_h: Num,
+    step_l_per_h: Num,
+}
+
+/// Renders the report as the JSON document.
+pub fn render(r: &PlanReport) -> Result<String, CliError> {
+    let i = &r.input;
+    let p = r.plan.as_ref();
+    let out = Output {
+        reachable: p.is_some(),
+        reagent_flow_l_per_h: p.map(|p| Num(p.reagent_flow_l_per_h)),
+        mixture_buffer_capacity: p.map(|p| Num(p.mixture_buffer_capacity_mol_per_l_per_ph)),
+        gain_ph_per_l_per_h: p.map(|p| Num(p.gain_ph_per_l_per_h)),
+        verdicts: r.verdicts.clone(),
+        all_clear: r.all_clear(),
+        setpoint_ph: Num(i.setpoint_ph),
+        influent_ph: Num(r.influent_ph),
+        influent_flow_l_per_h: Num(i.flow_l_per_h),
+        influent_dissolved: i.influent.iter().map(|d| (d.substance.formula, Num(d.mol_per_l))).collect(),
+        gain_ph_per_step: opt(p.and_then(|p| p.gain_ph_per_step)),
+        reagent_mol_per_l: opt(i.reagent.single_mol_per_l()),
+        reagent: i.reagent.to_out(),
+        mixture_ionic_strength: p.map(|p| Num(p.mixture_ionic_strength_mol_per_l)),
+        rounds: p.map(|p| p.rounds),
+        checks: p
+            .map(|p| {
+                p.checks
+                    .iter()
+                    .map(|c| match *c {
+                        DoseCheck::BeyondPump { needed_l_per_h, max_l_per_h } => {
+                            CheckOut::BeyondPump { needed_l_per_h: Num(needed_l_per_h), max_l_per_h: Num(max_l_per_h) }
+                        }
+                        DoseCheck::TooSteep {
+                            step_delta_ph,
+                            band_ph,
+                            dilute_reagent_by,
+                            nearest_controllable_setpoint_ph,
+                        } => CheckOut::TooSteep {
+                            step_delta_ph: Num(step_delta_ph),
+                            band_ph: Num(band_ph),
+                            dilute_reagent_by: Num(dilute_reagent_by),
+                            nearest_controllable_setpoint_ph: opt(nearest_controllable_setpoint_ph),
+                        },
+                    })
+                    .collect()
+            })
+            .unwrap_or_default(),
+        unreachable: r.unreachable.map(|u| match u {
+            Unreachable::WrongDirection => UnreachableOut::WrongDirection,
+            Unreachable::BeyondReagent { limit_ph } => UnreachableOut::BeyondReagent { limit_ph: Num(limit_ph) },
+        }),
+        stage_advice: r.stages.map(|s| StagesOut {
+            stages: s.stages,
+            setpoints_ph: s.setpoints_ph.iter().flatten().copied().map(Num).collect(),
+            excursion_ph: Num(s.excursion_ph),
+            both_directions: s.both_directions,
+            basis: STAGE_BASIS,
+        }),
+        pump: i.pump.map(|p| PumpOut { max_l_per_h: Num(p.max_l_per_h), step_l_per_h: Num(p.step_l_per_h) }),
+        band_ph: opt(i.band_ph),
+        temperature_c: Num(i.conditions.celsius()),
+        activity: i.conditions.activity_name(),
+        notes: r.notes.clone(),
+        caution: PLAN_CAUTION.replace('\n', " "),
+    };
+    json::render(&out)
+}

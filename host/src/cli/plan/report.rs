@@ -1,0 +1,139 @@
+//! Solving a `plan` request: influent and reagent → feed-forward plan, verdicts and stage advice.
+
+use phdose::titration::stages::{self, StageAdvice};
+use phdose::titration::{DoseCheck, DoseError, DosePlan, DoseRequest, dose};
+
+use super::input::PlanInput;
+use crate::cli::CliError;
+use crate::cli::composition::{self, HostSolution};
+use crate::cli::format::{fixed, sig};
+
+/// Why the setpoint cannot be reached (not an input error: the plan reports it).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum Unreachable {
+    /// The reagent moves the pH away from the setpoint.
+    WrongDirection,
+    /// Even an unlimited dose only approaches `limit_ph`.
+    BeyondReagent {
+        /// The pH an unlimited dose approaches.
+        limit_ph: f64,
+    },
+}
+
+/// Everything `plan` reports.
+#[derive(Clone, Debug, PartialEq)]
+pub struct PlanReport {
+    /// The request.
+    pub input: PlanInput,
+    /// The influent's own pH.
+    pub influent_ph: f64,
+    /// The plan, when the setpoint is reachable.
+    pub plan: Option<DosePlan<f64>>,
+    /// Why not, when it is not.
+    pub unreachable: Option<Unreachable>,
+    /// One readable line per finding: "ok", or each failed check.
+    pub verdicts: Vec<String>,
+    /// Stage advice for the influent pH and the setpoint (common practice).
+    pub stages: Option<StageAdvice<f64>>,
+    /// Remarks about the request (checks skipped for lack of data).
+    pub notes: Vec<String>,
+}
+
+impl PlanReport {
+    /// Reachable and every check passed.
+    pub fn all_clear(&self) -> bool {
+        self.plan.as_ref().is_some_and(DosePlan::all_clear)
+    }
+}
+
+/// The readable verdict for a failed check.
+pub fn check_verdict(check: &DoseCheck<f64>, setpoint_ph: f64) -> String {
+    match *check {
+        DoseCheck::BeyondPump { needed_l_per_h, max_l_per_h } => {
+            format!("beyond pump capacity: needs {} L/h, pump max {} L/h", sig(needed_l_per_h, 4), sig(max_l_per_h, 4))
+        }
+        DoseCheck::TooSteep { step_delta_ph, band_ph, dilute_reagent_by, nearest_controllable_setpoint_ph } => {
+            let head =
+                format!("too steep: one pump step moves pH by {} > band {}", fixed(step_delta_ph, 2), sig(band_ph, 3));
+            let weaker = format!("use a reagent about {}x weaker", sig(dilute_reagent_by, 2));
+            match nearest_controllable_setpoint_ph {
+                Some(sp) => format!("{head}; {weaker}, a second stage, or setpoint {}", fixed(sp, 1)),
+                None => format!(
+                    "{head}; {weaker} or a second stage (no setpoint within 2 pH of {} is controllable with this pump)",
+                    fixed(setpoint_ph, 1)
+                ),
+            }
+        }
+    }
+}
+
+/// Plans the dose. An unreachable setpoint is a result, not an error; bad compositions and
+/// solver failures are errors.
+pub fn compute(input: PlanInput) -> Result<PlanReport, CliError> {
+    let c = input.conditions;
+    let influent: HostSolution = composition::solution(c, &input.influent, "influent")?;
+    let reagent = input.reagent.solution(c, "reagent")?;
+    let influent_eq = influent.solve().map_err(|e| CliError::new(format!("influent: pH solver: {e}")))?;
+    let request = DoseRequest { setpoint_ph: input.setpoint_ph, pump: input.pump, band_ph: input.band_ph };
+
+    let mut verdicts = Vec::new();
+    let (plan, unreachable) = match dose::plan(&influent, input.flow_l_per_h, &reagent, &request) {
+        Ok(p) => {
+            verdicts.extend(p.checks.iter().map(|k| check_verdict(k, input.setpoint_ph)));
+            if verdicts.is_empty() {
+                verdicts.push("ok".to_owned());
+            }
+            (Some(p), None)
+        }
+        Err(e @ (DoseError::WrongDirection { .. } | DoseError::BeyondReagent { .. })) => {
+            verdicts.push(e.to_string());
+            let why = match e {
+                DoseError::BeyondReagent { limit_ph, .. } => Unreachable::BeyondReagent { limit_ph },
+                _ => Unreachable::WrongDirection,
+            };
+            (None, Some(why))
+        }
+        Err(DoseError::Solve(e)) => return Err(CliError::new(format!("dose: pH solver: {e}"))),
+        Err(e) => return Err(CliError::new(format!("dose: {e}"))),
+    };
+
+    let mut notes = Vec::new();
+    match (input.pump.is_some(), input.band_ph.is_some()) {
+        (false, true) => notes.push("band_ph given without a pump: the steepness check needs the pump step".to_owned()),
+        (true, false) => notes.push("no band_ph: the steepness check was skipped".to_owned()),
+        (false, false) => notes.push("no pump and no band_ph: the pump and steepness checks were skipped".to_owned()),
+        (true, true) => {}
+    }
+    let stages = stages::advise(influent_eq.ph, influent_eq.ph, input.setpoint_ph).ok();
+    Ok(PlanReport { influent_ph: influent_eq.ph, plan, unreachable, verdicts, stages, notes, input })
+}
+
+#[cfg(test)]
+mod tests {
+    #![allow(clippy::unwrap_used)]
+    use super::*;
+
+    #[test]
+    fn verdict_wording() {
+        let v = check_verdict(&DoseCheck::BeyondPump { needed_l_per_h: 12.345, max_l_per_h: 10.0 }, 7.0);
+        assert_eq!(v, "beyond pump capacity: needs 12.35 L/h, pump max 10 L/h");
+        let steep = DoseCheck::TooSteep {
+            step_delta_ph: 0.814,
+            band_ph: 0.3,
+            dilute_reagent_by: 4.21,
+            nearest_controllable_setpoint_ph: Some(8.4),
+        };
+        assert_eq!(
+            check_verdict(&steep, 7.0),
+            "too steep: one pump step moves pH by 0.81 > band 0.3; use a reagent about 4.2x weaker, a second \
+             stage, or setpoint 8.4"
+        );
+        let none = DoseCheck::TooSteep {
+            step_delta_ph: 2.0,
+            band_ph: 0.3,
+            dilute_reagent_by: 50.0,
+            nearest_controllable_setpoint_ph: None,
+        };
+        assert!(check_verdict(&none, 7.0).contains("no setpoint within 2 pH of 7.0"));
+    }
+}

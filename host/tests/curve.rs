@@ -1,0 +1,195 @@
+//! `phdose curve`: table, JSON, CSV and SVG outputs agree with each other and with the
+//! stoichiometry of the invented example (alkaline-cleaner rinse of a fictional plating shop).
+//!
+//! Reference values: the example's equivalence volumes follow from the amounts (calc): 100 mL
+//! holding 0.1 mmol NaOH and 0.2 mmol Na2CO3, titrated with 0.02 mol/L HCl, needs 5 mL for the
+//! hydroxide, 10 mL more for carbonate → bicarbonate (15 mL) and 10 mL more for bicarbonate →
+//! CO2 (25 mL). The hydroxide point sits inside the carbonate buffer and shows no inflection.
+#![allow(clippy::unwrap_used, clippy::expect_used, clippy::indexing_slicing, clippy::panic)]
+
+mod common;
+
+use common::{json_error, num, ok_json, ok_table, scratch, table_error};
+
+/// The coordinates of the first `<polyline>` in an SVG document.
+fn polyline_points(svg: &str) -> Vec<(f64, f64)> {
+    let start = svg.find("<polyline").expect("a polyline");
+    let rest = &svg[start..];
+    let pts = rest.split("points=\"").nth(1).unwrap().split('"').next().unwrap();
+    pts.split_whitespace()
+        .map(|p| {
+            let (x, y) = p.split_once(',').unwrap();
+            (x.parse().unwrap(), y.parse().unwrap())
+        })
+        .collect()
+}
+
+#[test]
+fn example_json_matches_the_stoichiometry() {
+    let doc = ok_json(&["curve", "--example", "--json"], "");
+    let points = doc["points"].as_array().unwrap();
+    assert_eq!(points.len(), 64);
+    let first = &points[0];
+    assert_eq!(num(first, "titrant_ml"), 0.0);
+    assert!((num(points.last().unwrap(), "titrant_ml") - 30.0).abs() < 1e-9);
+    for w in points.windows(2) {
+        assert!(num(&w[0], "titrant_ml") < num(&w[1], "titrant_ml"));
+        assert!(num(&w[0], "ph") >= num(&w[1], "ph"), "acid titrant: pH falls");
+        assert!(num(&w[1], "buffer_capacity") > 0.0);
+    }
+    let model = doc["equivalence_points"]["model"].as_array().unwrap();
+    let volumes: Vec<f64> = model.iter().map(|e| num(e, "titrant_ml")).collect();
+    assert_eq!(volumes.len(), 3, "{model:?}");
+    for (v, expect) in volumes.iter().zip([5.0, 15.0, 25.0]) {
+        assert!((v - expect).abs() < 1e-9, "{v} vs {expect}");
+    }
+    assert_eq!(model[2]["system"], "strong");
+    let curve = doc["equivalence_points"]["curve"].as_array().unwrap();
+    assert_eq!(curve.len(), 2, "{curve:?}");
+    for (e, expect) in curve.iter().zip([15.0, 25.0]) {
+        assert!((num(e, "titrant_ml") - expect).abs() < 0.1, "{e}");
+    }
+    // Bicarbonate point near pH 8.3, CO2 point near 4.5 (SM 2320 endpoints, as named in
+    // phdose::titration::alkalinity); the model solves them, so ±0.3.
+    assert!((num(&curve[0], "ph") - 8.3).abs() < 0.3 && (num(&curve[1], "ph") - 4.5).abs() < 0.3, "{curve:?}");
+    assert_eq!(num(&doc, "sample_volume_l"), 0.1);
+    assert!(doc["files"]["csv"].is_null() && doc["files"]["svg"].is_null());
+}
+
+#[test]
+fn csv_and_svg_files() {
+    let dir = scratch("curve-files");
+    let (csv, svg) = (dir.join("curve.csv"), dir.join("curve.svg"));
+    let (csv_s, svg_s) = (csv.to_str().unwrap(), svg.to_str().unwrap());
+    let doc = ok_json(&["curve", "--example", "--json", "--points", "96", "--csv", csv_s, "--svg", svg_s], "");
+    assert_eq!(doc["files"]["csv"].as_str(), Some(csv_s));
+    let points = doc["points"].as_array().unwrap();
+    assert_eq!(points.len(), 96);
+
+    let text = std::fs::read_to_string(&csv).unwrap();
+    let mut lines = text.lines();
+    assert_eq!(lines.next(), Some("titrant_ml,ph,buffer_capacity_mol_per_l_per_ph"));
+    let rows: Vec<Vec<f64>> = lines.map(|l| l.split(',').map(|x| x.parse().unwrap()).collect()).collect();
+    assert_eq!(rows.len(), 96);
+    // Same numbers (serde_json's default float parser may be off by an ulp, hence 1e-14).
+    let same = |a: f64, b: f64| (a - b).abs() <= 1e-14 * a.abs().max(b.abs());
+    for (row, p) in rows.iter().zip(points) {
+        assert_eq!(row.len(), 3);
+        assert!(same(row[0], num(p, "titrant_ml")), "{row:?} vs {p}");
+        assert!(same(row[1], num(p, "ph")), "{row:?} vs {p}");
+        assert!(same(row[2], num(p, "buffer_capacity")), "{row:?} vs {p}");
+    }
+
+    let svg = std::fs::read_to_string(&svg).unwrap();
+    assert!(svg.starts_with("<svg") && svg.trim_end().ends_with("</svg>"));
+    let line = polyline_points(&svg);
+    assert_eq!(line.len(), 96, "one polyline vertex per curve point");
+    // Pixel coordinates fall with rising pH (SVG y runs down): the first vertex (high pH) is
+    // above the last.
+    assert!(line[0].1 < line[95].1 && line[0].0 < line[95].0);
+    let curve = doc["equivalence_points"]["curve"].as_array().unwrap();
+    let model = doc["equivalence_points"]["model"].as_array().unwrap();
+    assert_eq!(svg.matches("<circle class=\"eq-curve\"").count(), curve.len());
+    assert_eq!(svg.matches("<circle class=\"eq-model\"").count(), model.len());
+    for e in curve {
+        let label = format!(">pH {:.2}</text>", num(e, "ph"));
+        assert!(svg.contains(&label), "SVG lacks the label {label}");
+    }
+    for word in [">titrant added (mL)</text>", ">pH</text>", "rotate(-90"] {
+        assert!(svg.contains(word), "SVG lacks {word}");
+    }
+    // Tick labels on both axes: 0 … 30 mL and a pH range.
+    assert!(svg.contains(">0</text>") && svg.contains(">30</text>"));
+    assert!(svg.matches("<text").count() >= 15);
+}
+
+#[test]
+fn table_and_flags_agree_with_json() {
+    let request = r#"{"temperature_c": 20, "activity": "ideal",
+        "sample": {"volume_l": 0.05, "dissolved": {"HCOOH": 0.004, "HCl": 0.002}},
+        "titrant": {"dissolved": {"NaOH": 0.02}}, "max_titrant_l": 0.02, "points": 40}"#;
+    let doc = ok_json(&["curve", "--json"], request);
+    assert_eq!(doc["points"].as_array().unwrap().len(), 40);
+    // 0.1 mmol HCl then 0.2 mmol formic acid with 0.02 mol/L NaOH: 5 and 15 mL (calc).
+    let model: Vec<f64> =
+        doc["equivalence_points"]["model"].as_array().unwrap().iter().map(|e| num(e, "titrant_ml")).collect();
+    assert_eq!(model.len(), 2);
+    assert!((model[0] - 5.0).abs() < 1e-9 && (model[1] - 15.0).abs() < 1e-9, "{model:?}");
+
+    let out = ok_table(&[
+        "curve",
+        "HCOOH=0.004",
+        "HCl=0.002",
+        "--sample-ml",
+        "50",
+        "--titrant",
+        "NaOH=0.02",
+        "--max-titrant-ml",
+        "20",
+        "--points",
+        "40",
+        "--temperature-c",
+        "20",
+        "--activity",
+        "ideal",
+    ]);
+    let rows: Vec<&str> =
+        out.lines().filter(|l| l.trim_start().chars().next().is_some_and(|c| c.is_ascii_digit())).collect();
+    assert_eq!(rows.len(), 40 + doc["equivalence_points"]["curve"].as_array().unwrap().len() + 2, "{out}");
+    for (row, p) in rows.iter().zip(doc["points"].as_array().unwrap()) {
+        assert!(row.contains(&format!("{:.3}", num(p, "ph"))), "{row} vs {p}");
+    }
+    assert!(out.contains("formate step 1"), "{out}");
+    assert!(out.trim_end().lines().last().unwrap().contains("SAFETY.md"));
+}
+
+#[test]
+fn mass_percent_titrant() {
+    let request = r#"{"sample": {"volume_l": 1.0, "dissolved": {"NaHCO3": 0.003}},
+        "titrant": {"substance": "HCl", "mass_percent": 32}, "max_titrant_l": 0.0005}"#;
+    let doc = ok_json(&["curve", "--json"], request);
+    // 32 % HCl at 1.159 kg/L (grade table) = 10.17 mol/L (calc); 3 mmol bicarbonate → 0.295 mL.
+    let c = num(&doc["titrant"]["dissolved"], "HCl");
+    assert!((c - 0.32 * 1.159 * 1000.0 / 36.458).abs() < 1e-9);
+    let model = doc["equivalence_points"]["model"].as_array().unwrap();
+    assert!((num(&model[0], "titrant_ml") - 3.0 / c).abs() < 1e-9, "{model:?}");
+    assert_eq!(doc["points"].as_array().map(Vec::len), Some(64), "default point count");
+}
+
+#[test]
+fn input_errors_exit_2() {
+    let base = r#""sample": {"volume_l": 0.1, "dissolved": {"NaOH": 0.001}}, "titrant": {"dissolved": {"HCl": 0.02}}"#;
+    for (extra, expect) in [
+        (r#""max_titrant_l": 0.01, "points": 63"#, "multiple of 8"),
+        (r#""max_titrant_l": 0.01, "points": 512"#, "multiple of 8"),
+        (r#""max_titrant_l": 0.01, "points": 4"#, "multiple of 8"),
+        (r#""max_titrant_l": 0"#, "max titrant"),
+        (r#""max_titrant_l": -0.01"#, "max titrant"),
+        (r#""max_titrant_l": 0.01, "colour": "red""#, "unknown field"),
+    ] {
+        let msg = json_error(&["curve", "--json"], &format!("{{{base}, {extra}}}"));
+        assert!(msg.contains(expect), "{extra}: {msg}");
+    }
+    let msg =
+        json_error(&["curve", "--json"], &format!("{{{}, \"max_titrant_l\": 0.01}}", base.replace("HCl", "HXYZ")));
+    assert!(msg.starts_with("titrant: ") && msg.contains("known formulas"), "{msg}");
+    let msg = json_error(
+        &["curve", "--json"],
+        r#"{"sample": {"volume_l": 0, "dissolved": {}}, "titrant": {"dissolved": {"HCl": 0.1}}, "max_titrant_l": 0.01}"#,
+    );
+    assert!(msg.contains("sample volume"), "{msg}");
+    json_error(&["curve", "--json", "--points", "64"], &format!("{{{base}, \"max_titrant_l\": 0.01}}"));
+    json_error(&["curve", "--json"], "");
+
+    let dir = scratch("curve-errors");
+    let missing = dir.join("no-such-dir").join("c.svg");
+    let e = table_error(&["curve", "--example", "--svg", missing.to_str().unwrap()]);
+    assert!(e.contains("cannot write SVG file"), "{e}");
+    assert!(table_error(&["curve", "--example", "NaOH=0.1"]).contains("--example"));
+    assert!(table_error(&["curve", "--example", "--sample-ml", "50"]).contains("fixed scenario"));
+    assert!(
+        table_error(&["curve", "NaOH=0.001", "--sample-ml", "100", "--titrant", "HCl=0.02"])
+            .contains("--max-titrant-ml")
+    );
+    assert!(table_error(&["curve"]).contains("--example"));
+}
