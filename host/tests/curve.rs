@@ -43,7 +43,11 @@ fn example_json_matches_the_stoichiometry() {
     for (v, expect) in volumes.iter().zip([5.0, 15.0, 25.0]) {
         assert!((v - expect).abs() < 1e-9, "{v} vs {expect}");
     }
-    assert_eq!(model[2]["system"], "strong");
+    // Acid titrant: hydroxide first ("strong"), then CO3^2- -> HCO3- (carbonate step 2), then
+    // HCO3- -> CO2 (carbonate step 1).
+    assert_eq!(model[0]["system"], "strong");
+    assert_eq!((model[1]["system"].as_str(), model[1]["step"].as_u64()), (Some("carbonate"), Some(2)));
+    assert_eq!((model[2]["system"].as_str(), model[2]["step"].as_u64()), (Some("carbonate"), Some(1)));
     let curve = doc["equivalence_points"]["curve"].as_array().unwrap();
     assert_eq!(curve.len(), 2, "{curve:?}");
     for (e, expect) in curve.iter().zip([15.0, 25.0]) {
@@ -160,9 +164,9 @@ fn mass_percent_titrant() {
 fn input_errors_exit_2() {
     let base = r#""sample": {"volume_l": 0.1, "dissolved": {"NaOH": 0.001}}, "titrant": {"dissolved": {"HCl": 0.02}}"#;
     for (extra, expect) in [
-        (r#""max_titrant_l": 0.01, "points": 63"#, "multiple of 8"),
-        (r#""max_titrant_l": 0.01, "points": 512"#, "multiple of 8"),
-        (r#""max_titrant_l": 0.01, "points": 4"#, "multiple of 8"),
+        (r#""max_titrant_l": 0.01, "points": 63.5"#, "whole number"),
+        (r#""max_titrant_l": 0.01, "points": 512"#, "whole number"),
+        (r#""max_titrant_l": 0.01, "points": 4"#, "whole number"),
         (r#""max_titrant_l": 0"#, "max titrant"),
         (r#""max_titrant_l": -0.01"#, "max titrant"),
         (r#""max_titrant_l": 0.01, "colour": "red""#, "unknown field"),

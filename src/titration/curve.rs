@@ -99,21 +99,34 @@ impl<R: Real, const N: usize, const M: usize> Titration<'_, R, N, M> {
         Ok(CurvePoint { titrant_l, ph: e.ph, buffer_capacity_mol_per_l_per_ph: e.buffer_capacity_mol_per_l_per_ph })
     }
 
-    /// Fills `out` (cleared first, capacity `K` ≥ 4) with the curve from 0 to `max_titrant_l`.
-    ///
-    /// Spacing is adaptive: ⌈K/4⌉ evenly spaced points first, then the remaining capacity is
-    /// spent splitting, one at a time, the segment that is longest on a plot normalised to the
-    /// curve's pH span and the titrant range — so the steep parts get the points. Exactly `K`
-    /// solves (each warm-started from a neighbour) and O(K²) comparisons.
+    /// Fills `out` (cleared first, capacity `K` ≥ 4) with `K` points of the curve from 0 to
+    /// `max_titrant_l`; see [`Titration::curve_points`] for fewer.
     pub fn curve<const K: usize>(&self, max_titrant_l: R, out: &mut Vec<CurvePoint<R>, K>) -> Result<(), CurveError> {
+        self.curve_points(max_titrant_l, K, out)
+    }
+
+    /// Fills `out` (cleared first, capacity `K` ≥ 4) with `points` (4 ≤ points ≤ K; clamped)
+    /// points of the curve from 0 to `max_titrant_l`.
+    ///
+    /// Spacing is adaptive: ⌈points/4⌉ evenly spaced points first, then the remaining capacity is
+    /// spent splitting, one at a time, the segment that is longest on a plot normalised to the
+    /// curve's pH span and the titrant range — so the steep parts get the points. Exactly
+    /// `points` solves (each warm-started from a neighbour) and O(K²) comparisons.
+    pub fn curve_points<const K: usize>(
+        &self,
+        max_titrant_l: R,
+        points: usize,
+        out: &mut Vec<CurvePoint<R>, K>,
+    ) -> Result<(), CurveError> {
         const { assert!(K >= 4, "a titration curve needs at least 4 points") };
+        let points = points.clamp(4, K);
         self.check()?;
         let vmax = max_titrant_l.to_f64();
         if !(vmax.is_finite() && vmax > 0.0) {
             return Err(CurveError::InvalidRange);
         }
         out.clear();
-        let initial = K.div_ceil(4).max(2);
+        let initial = points.div_ceil(4).max(2);
         let mut near = None;
         for i in 0..initial {
             let v = max_titrant_l * R::from_f64(i as f64 / (initial - 1) as f64);
@@ -121,7 +134,7 @@ impl<R: Real, const N: usize, const M: usize> Titration<'_, R, N, M> {
             near = Some(p.ph);
             out.push(p).map_err(|_| CurveError::InvalidRange)?;
         }
-        while out.len() < K {
+        while out.len() < points {
             let (lo_ph, hi_ph) =
                 out.iter().fold((R::from_f64(99.0), R::from_f64(-99.0)), |(a, b), p| (a.min(p.ph), b.max(p.ph)));
             let span = (hi_ph - lo_ph).max(R::from_f64(1e-3));
@@ -162,23 +175,9 @@ impl<R: Real, const N: usize, const M: usize> Titration<'_, R, N, M> {
         }
         let v0 = self.sample_volume_l;
         let comps = self.sample.components();
-        // Charge (eq) with no step completed: every system fully protonated.
-        let mut z = self.sample.strong_charge_eq_per_l() * v0;
-        for c in comps {
-            z += R::from_i32(c.system.charge_of_form(0)) * c.total_mol_per_l * v0;
-        }
-        // Level 0: the strong ions alone balanced, every system untouched (e.g. the strong-acid
-        // point of a sample that also holds carbonate).
-        let mut near = None;
-        let v = -z / ct;
-        if v > R::ZERO && v <= max_titrant_l {
-            let e = self.equilibrium_at(v, near)?;
-            near = Some(e.ph);
-            let _ = out.push(EquivalencePoint { titrant_l: v, ph: e.ph, system: "strong", step: 0 });
-        }
-        // Walk the steps in ascending pKa without storing them: at most 3·N rounds, each a scan.
-        let mut last: Option<(R, usize, usize)> = None; // (pKa, component, step) of the last level
-        for _ in 0..(3 * comps.len()) {
+        let base_titrant = ct > R::ZERO;
+        // The next step above `last` in (pKa, component, step) order: one scan of ≤ 3·N steps.
+        let next_step = |last: Option<(R, usize, usize)>| {
             let mut next: Option<(R, usize, usize)> = None;
             for (ci, c) in comps.iter().enumerate() {
                 for step in 1..=c.system.step_count() {
@@ -190,20 +189,45 @@ impl<R: Real, const N: usize, const M: usize> Titration<'_, R, N, M> {
                     }
                 }
             }
-            let Some((pk, ci, step)) = next else { break };
-            last = Some((pk, ci, step));
-            let Some(c) = comps.get(ci) else { break };
-            z -= c.total_mol_per_l * v0; // one more proton per formula unit removed
-            // Titrant charge ct·v must cancel z: v = −z/ct.
+            next
+        };
+        let label = |s: Option<(R, usize, usize)>| -> (&'static str, u8) {
+            match s.and_then(|(_, ci, step)| comps.get(ci).map(|c| (c.system.key, step))) {
+                Some((key, step)) => (key, u8::try_from(step).unwrap_or(u8::MAX)),
+                None => ("strong", 0),
+            }
+        };
+        // Level k: the k lowest-pKa steps deprotonated, the rest protonated. Its charge (eq) z_k
+        // starts with every system fully protonated and loses one proton per formula unit of the
+        // step completed. The titrant charge ct·v cancels it at v = −z_k/ct. A base titrant
+        // reaches level k by completing its k-th step (label: that step; level 0: "strong"); an
+        // acid titrant reaches it by re-protonating step k+1 (label: that step; the top level,
+        // where only the strong base is neutralised: "strong"). At most 3·N + 1 levels.
+        let mut z = self.sample.strong_charge_eq_per_l() * v0;
+        for c in comps {
+            z += R::from_i32(c.system.charge_of_form(0)) * c.total_mol_per_l * v0;
+        }
+        let mut previous: Option<(R, usize, usize)> = None;
+        let mut near = None;
+        for _ in 0..=(3 * comps.len()) {
+            let upcoming = next_step(previous);
             let v = -z / ct;
             if v > R::ZERO && v <= max_titrant_l {
                 let e = self.equilibrium_at(v, near)?;
                 near = Some(e.ph);
-                let step_u8 = u8::try_from(step).unwrap_or(u8::MAX);
-                if out.push(EquivalencePoint { titrant_l: v, ph: e.ph, system: c.system.key, step: step_u8 }).is_err() {
+                let (system, step) = if base_titrant { label(previous) } else { label(upcoming) };
+                if out.push(EquivalencePoint { titrant_l: v, ph: e.ph, system, step }).is_err() {
                     break;
                 }
             }
+            let Some((_, ci, _)) = upcoming else { break };
+            let Some(c) = comps.get(ci) else { break };
+            z -= c.total_mol_per_l * v0;
+            previous = upcoming;
+        }
+        // An acid titrant meets the levels from the top down: report them in titrant order.
+        if !base_titrant {
+            out.reverse();
         }
         Ok(())
     }
@@ -431,6 +455,32 @@ mod tests {
         }
         // CO2 solution at the first point is acidic, bicarbonate at the second is near 8.3.
         assert!(eq[0].ph < 5.5 && (eq[1].ph - 8.3).abs() < 0.3, "{eq:?}");
+    }
+
+    #[test]
+    fn acid_titrant_points_come_in_titrant_order_with_their_step() {
+        // Caustic carbonate cleaner rinse (invented): 1 mM NaOH + 1 mM Na2CO3, 0.1 L, 0.02 M HCl.
+        let mut sample = ideal::<2>();
+        sample.add_formula("NaOH", 0.001).unwrap();
+        sample.add_formula("Na2CO3", 0.001).unwrap();
+        let mut titrant = ideal::<1>();
+        titrant.add_formula("HCl", 0.02).unwrap();
+        let t = Titration { sample: &sample, sample_volume_l: 0.1, titrant: &titrant };
+        let mut eq: Vec<EquivalencePoint<f64>, 4> = Vec::new();
+        t.model_equivalence_points(0.05, &mut eq).unwrap();
+        let got: std::vec::Vec<(&str, u8, f64)> = eq.iter().map(|e| (e.system, e.step, e.titrant_l * 1000.0)).collect();
+        // OH− first (5 mL), then CO3²− → HCO3− (step 2, 10 mL), then HCO3− → CO2 (step 1, 15 mL).
+        let want = [("strong", 0, 5.0), ("carbonate", 2, 10.0), ("carbonate", 1, 15.0)];
+        assert_eq!(got.len(), 3, "{got:?}");
+        for ((s, k, ml), (ws, wk, wml)) in got.iter().zip(want) {
+            assert_eq!((*s, *k), (ws, wk));
+            assert!((ml - wml).abs() < 1e-9);
+        }
+        assert!(eq[0].ph > eq[1].ph && eq[1].ph > eq[2].ph);
+        // A curve of fewer points than the buffer holds.
+        let mut c: Vec<CurvePoint<f64>, 64> = Vec::new();
+        t.curve_points(0.02, 24, &mut c).unwrap();
+        assert_eq!(c.len(), 24);
     }
 
     #[test]

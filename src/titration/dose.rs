@@ -61,8 +61,9 @@ pub enum DoseCheck<R: Real> {
         step_delta_ph: R,
         /// The control band's width, pH.
         band_ph: R,
-        /// Dilute the reagent by about this factor (the linear gain's step over the band, ≥ 1)
-        /// to make one step fit the band.
+        /// Dilute the reagent by this factor (within 5 %) to make one step fit the band (a real
+        /// solve: a step of step/factor L/h of this reagent at the planned flow moves the pH by
+        /// no more than the band). Capped at [`MAX_DILUTION`].
         dilute_reagent_by: R,
         /// Nearest setpoint (within ±2 pH, 0.1 apart) where one step fits the band, if any.
         nearest_controllable_setpoint_ph: Option<R>,
@@ -120,9 +121,14 @@ pub enum DoseError {
         /// The setpoint.
         setpoint_ph: f64,
     },
-    /// Setpoint not finite or outside 0–14; band or pump values not finite or ≤ 0; influent
-    /// flow not finite or ≤ 0.
-    InvalidRequest,
+    /// Setpoint not finite or outside 0–14.
+    InvalidSetpoint,
+    /// Influent flow not finite or ≤ 0 (or above [`crate::titration::stream::MAX_FLOW_L_PER_H`]).
+    InvalidFlow,
+    /// Pump maximum or step not finite or ≤ 0, or the step larger than the maximum.
+    InvalidPump,
+    /// Control band not finite or ≤ 0.
+    InvalidBand,
     /// A composition error (e.g. the mixture's capacity `N` cannot hold the reagent's systems).
     Composition(CompositionError),
     /// Solving the influent or the reagent failed.
@@ -142,9 +148,12 @@ impl core::fmt::Display for DoseError {
                 f,
                 "unreachable: setpoint {setpoint_ph:.2} is beyond pH {limit_ph:.2}, which even an unlimited dose only approaches"
             ),
-            Self::InvalidRequest => {
-                f.write_str("setpoint must be within 0-14; flows, pump and band must be finite and positive")
-            }
+            Self::InvalidSetpoint => f.write_str("setpoint must be a pH within 0-14"),
+            Self::InvalidFlow => f.write_str("influent flow must be finite and positive"),
+            Self::InvalidPump => f.write_str(
+                "pump maximum and step must be finite and positive, with the step no larger than the maximum",
+            ),
+            Self::InvalidBand => f.write_str("control band must be finite and positive"),
             Self::Composition(e) => core::fmt::Display::fmt(e, f),
             Self::Solve(e) => core::fmt::Display::fmt(e, f),
             Self::NotConverged => f.write_str("dose refinement for activity did not converge"),
@@ -248,11 +257,19 @@ pub fn plan<R: Real, const N: usize, const M: usize>(
 ) -> Result<DosePlan<R>, DoseError> {
     let x = request.setpoint_ph;
     let xf = x.to_f64();
-    let setpoint_ok = xf.is_finite() && (0.0..=14.0).contains(&xf);
-    let pump_ok = request.pump.is_none_or(|p| positive_finite(p.max_l_per_h) && positive_finite(p.step_l_per_h));
-    let band_ok = request.band_ph.is_none_or(positive_finite);
-    if !(setpoint_ok && pump_ok && band_ok && positive_finite(influent_flow_l_per_h)) {
-        return Err(DoseError::InvalidRequest);
+    if !(xf.is_finite() && (0.0..=14.0).contains(&xf)) {
+        return Err(DoseError::InvalidSetpoint);
+    }
+    if !positive_finite(influent_flow_l_per_h) || influent_flow_l_per_h.to_f64() > super::stream::MAX_FLOW_L_PER_H {
+        return Err(DoseError::InvalidFlow);
+    }
+    if !request.pump.is_none_or(|p| {
+        positive_finite(p.max_l_per_h) && positive_finite(p.step_l_per_h) && p.step_l_per_h <= p.max_l_per_h
+    }) {
+        return Err(DoseError::InvalidPump);
+    }
+    if !request.band_ph.is_none_or(positive_finite) {
+        return Err(DoseError::InvalidBand);
     }
     let mut reagent = reagent.clone();
     reagent.set_temperature(influent.temperature());
@@ -271,11 +288,12 @@ pub fn plan<R: Real, const N: usize, const M: usize>(
             && step.abs() > band
         {
             let nearest = scan_setpoints(influent, influent_flow_l_per_h, &inf_eq, &reagent, x, pump, band);
-            let linear = (core.gain * pump.step_l_per_h).abs();
+            let dilute =
+                dilution_needed(influent, influent_flow_l_per_h, &reagent, x, core.flow, pump.step_l_per_h, band);
             let _ = checks.push(DoseCheck::TooSteep {
                 step_delta_ph: step.abs(),
                 band_ph: band,
-                dilute_reagent_by: (linear / band).max(R::ONE),
+                dilute_reagent_by: dilute,
                 nearest_controllable_setpoint_ph: nearest,
             });
         }
@@ -306,6 +324,44 @@ fn step_delta_ph<R: Real, const N: usize, const M: usize>(
     let mix = influent.mix(influent_flow_l_per_h, reagent, flow + step).map_err(DoseError::Composition)?;
     let eq = mix.solve_from(x).map_err(DoseError::Solve)?;
     Ok(eq.ph - x)
+}
+
+/// Largest dilution factor [`DoseCheck::TooSteep`] reports.
+pub const MAX_DILUTION: f64 = 1e6;
+
+/// Smallest factor f (1–[`MAX_DILUTION`], found to 5 %) such that a step of `step/f` L/h at the
+/// planned flow moves the pH by at most `band`: diluting the reagent f-fold (ignoring the extra
+/// water's volume, small at these flows) gives a pump step that fits the band. Bisection on
+/// log f: at most 30 solves.
+fn dilution_needed<R: Real, const N: usize, const M: usize>(
+    influent: &Solution<R, N>,
+    influent_flow_l_per_h: R,
+    reagent: &Solution<R, M>,
+    x: R,
+    flow: R,
+    step: R,
+    band: R,
+) -> R {
+    let fits = |f: f64| {
+        step_delta_ph(influent, influent_flow_l_per_h, reagent, x, flow, step / R::from_f64(f))
+            .is_ok_and(|d| d.abs() <= band)
+    };
+    if !fits(MAX_DILUTION) {
+        return R::from_f64(MAX_DILUTION);
+    }
+    let (mut lo, mut hi) = (0.0_f64, libm::log10(MAX_DILUTION)); // log10 f: lo fails, hi fits
+    for _ in 0..30 {
+        if hi - lo < 0.02 {
+            break;
+        }
+        let mid = 0.5 * (lo + hi);
+        if fits(libm::pow(10.0, mid)) {
+            hi = mid;
+        } else {
+            lo = mid;
+        }
+    }
+    R::from_f64(libm::pow(10.0, hi))
 }
 
 /// Nearest setpoint within ±2 pH (0.1 apart, closest first) where one pump step fits the band
@@ -415,8 +471,15 @@ mod tests {
         }
         assert_eq!(
             plan(&influent, 1200.0, &reagent, &DoseRequest { setpoint_ph: f64::NAN, pump: None, band_ph: None }),
-            Err(DoseError::InvalidRequest)
+            Err(DoseError::InvalidSetpoint)
         );
+        let bad_pump =
+            DoseRequest { setpoint_ph: 7.0, pump: Some(Pump { max_l_per_h: 1.0, step_l_per_h: 2.0 }), band_ph: None };
+        assert_eq!(plan(&influent, 1200.0, &reagent, &bad_pump), Err(DoseError::InvalidPump));
+        let bad_band = DoseRequest { setpoint_ph: 7.0, pump: None, band_ph: Some(0.0) };
+        assert_eq!(plan(&influent, 1200.0, &reagent, &bad_band), Err(DoseError::InvalidBand));
+        let ok = DoseRequest { setpoint_ph: 7.0, pump: None, band_ph: None };
+        assert_eq!(plan(&influent, -5.0, &reagent, &ok), Err(DoseError::InvalidFlow));
     }
 
     #[test]
@@ -445,6 +508,20 @@ mod tests {
         });
         let (dph, dilute) = steep.expect("too steep expected");
         assert!(dph > 0.3 && dilute > 1.0, "{dph} {dilute}");
+        // The dilution factor is real: a step of step/factor L/h fits the band, and one of
+        // step/(0.9·factor) does not.
+        let step_with = |q: f64| {
+            let r = {
+                let mut r = reagent.clone();
+                r.set_temperature(influent.temperature());
+                r
+            };
+            let base = influent.mix(1200.0, &r, needed).unwrap();
+            let moved = influent.mix(1200.0, &r, needed + q).unwrap();
+            (moved.solve().unwrap().ph - base.solve().unwrap().ph).abs()
+        };
+        assert!(step_with(0.01 / dilute) <= 0.3 + 1e-9, "{}", step_with(0.01 / dilute));
+        assert!(step_with(0.01 / (0.9 * dilute)) > 0.3, "{}", step_with(0.01 / (0.9 * dilute)));
         // The scan found a setpoint where one step fits the band (away from neutral, where water
         // itself buffers), and it is really controllable there.
         let nearest = p.checks.iter().find_map(|c| match c {

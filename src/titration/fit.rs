@@ -363,8 +363,8 @@ fn normal_equations<R: Real, const M: usize>(
     Ok((a, g))
 }
 
-/// Model sample: the fitted systems plus room for one titrant system.
-type Sample<R> = Solution<R, 4>;
+/// Model sample: the three fitted systems plus room for up to three titrant systems.
+type Sample<R> = Solution<R, 6>;
 
 fn point_residual<R: Real, const M: usize>(
     sample: &Sample<R>,

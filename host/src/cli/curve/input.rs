@@ -30,9 +30,8 @@ pub const REQUEST_FLAGS: [Spec; 5] = [SAMPLE_ML, TITRANT, MAX_TITRANT_ML, args::
 pub const DEFAULT_POINTS: usize = 64;
 /// Largest number of curve points.
 pub const MAX_POINTS: usize = 256;
-/// Point counts must be a multiple of this (the core fills a fixed-capacity vector whose
-/// capacity is a compile-time constant, so the host offers a fixed set of capacities).
-pub const POINTS_STEP: usize = 8;
+/// Fewest curve points.
+pub const MIN_POINTS: usize = 8;
 
 /// Shape of the JSON request, shown when stdin is empty.
 pub const JSON_EXAMPLE: &str = r#"{"sample": {"volume_l": 0.1, "dissolved": {"NaOH": 0.001, "Na2CO3": 0.002}}, "titrant": {"dissolved": {"HCl": 0.02}}, "max_titrant_l": 0.03, "points": 64}"#;
@@ -75,16 +74,15 @@ struct SampleJson {
     dissolved: Entries,
 }
 
-/// Checks a point count: a whole number, a multiple of [`POINTS_STEP`] within 8–[`MAX_POINTS`].
+/// Checks a point count: a whole number within [`MIN_POINTS`]–[`MAX_POINTS`].
 pub fn check_points(points: f64) -> Result<usize, CliError> {
-    let ok = points.is_finite() && points.fract() == 0.0 && (8.0..=MAX_POINTS as f64).contains(&points);
-    let n = if ok { points as usize } else { 0 };
-    if n == 0 || n % POINTS_STEP != 0 {
+    let ok = points.is_finite() && points.fract() == 0.0 && (MIN_POINTS as f64..=MAX_POINTS as f64).contains(&points);
+    if !ok {
         return Err(CliError::new(format!(
-            "points {points} must be a multiple of {POINTS_STEP} from {POINTS_STEP} to {MAX_POINTS} (e.g. 64)"
+            "points {points} must be a whole number from {MIN_POINTS} to {MAX_POINTS} (e.g. 64)"
         )));
     }
-    Ok(n)
+    Ok(points as usize)
 }
 
 impl CurveInput {
@@ -167,7 +165,8 @@ mod tests {
         assert_eq!(check_points(64.0).unwrap(), 64);
         assert_eq!(check_points(8.0).unwrap(), 8);
         assert_eq!(check_points(256.0).unwrap(), 256);
-        for bad in [0.0, 4.0, 63.0, 64.5, 264.0, -64.0, f64::NAN] {
+        assert_eq!(check_points(63.0).unwrap(), 63);
+        for bad in [0.0, 4.0, 64.5, 264.0, -64.0, f64::NAN] {
             assert!(check_points(bad).is_err(), "{bad}");
         }
     }

@@ -26,21 +26,10 @@ pub struct CurveReport {
 
 type HostTitration<'a> = Titration<'a, f64, { composition::CAPACITY }, { crate::cli::reagent::CAPACITY }>;
 
-fn fill<const K: usize>(t: &HostTitration<'_>, max_titrant_l: f64) -> Result<Vec<CurvePoint<f64>>, CurveError> {
-    let mut out: FixedVec<CurvePoint<f64>, K> = FixedVec::new();
-    t.curve(max_titrant_l, &mut out)?;
+fn fill(t: &HostTitration<'_>, max_titrant_l: f64, points: usize) -> Result<Vec<CurvePoint<f64>>, CurveError> {
+    let mut out: FixedVec<CurvePoint<f64>, { super::input::MAX_POINTS }> = FixedVec::new();
+    t.curve_points(max_titrant_l, points, &mut out)?;
     Ok(out.to_vec())
-}
-
-/// `Titration::curve` fills a vector of compile-time capacity K with exactly K points, so each
-/// allowed point count is its own instance (multiples of 8 up to 256).
-macro_rules! curve_with_points {
-    ($n:expr, $t:expr, $max:expr; $($k:literal)*) => {
-        match $n {
-            $($k => fill::<$k>($t, $max),)*
-            other => return Err(CliError::new(format!("points {other} is not a supported count"))),
-        }
-    };
 }
 
 fn curve_error(e: CurveError) -> CliError {
@@ -56,19 +45,13 @@ pub fn compute(input: CurveInput) -> Result<CurveReport, CliError> {
     let sample: HostSolution = composition::solution(c, &input.sample, "sample")?;
     let titrant: ReagentSolution = input.titrant.solution(c, "titrant")?;
     let t = Titration { sample: &sample, sample_volume_l: input.sample_volume_l, titrant: &titrant };
-    let points = curve_with_points!(input.points, &t, input.max_titrant_l;
-        8 16 24 32 40 48 56 64 72 80 88 96 104 112 120 128
-        136 144 152 160 168 176 184 192 200 208 216 224 232 240 248 256)
-    .map_err(curve_error)?;
+    let points = fill(&t, input.max_titrant_l, input.points).map_err(curve_error)?;
     let mut found: FixedVec<EquivalencePoint<f64>, MAX_EQUIVALENCE_POINTS> = FixedVec::new();
     inflections(&points, &mut found);
     let mut model: FixedVec<EquivalencePoint<f64>, MAX_EQUIVALENCE_POINTS> = FixedVec::new();
     t.model_equivalence_points(input.max_titrant_l, &mut model).map_err(curve_error)?;
-    // The core lists model points by stoichiometric level; with an acid titrant the levels run
-    // backwards in volume. Tables and plots read in titrant order.
-    let mut model = model.to_vec();
-    model.sort_by(|a, b| a.titrant_l.total_cmp(&b.titrant_l));
-    Ok(CurveReport { points, on_curve: found.to_vec(), model, input })
+    // The core reports model points in titrant order.
+    Ok(CurveReport { points, on_curve: found.to_vec(), model: model.to_vec(), input })
 }
 
 /// The CSV text: header `titrant_ml,ph,buffer_capacity_mol_per_l_per_ph`, one line per point.
