@@ -84,6 +84,7 @@ case "${1:-all}" in
         do_thumb
         do_doc
         do_bench
+        do_fuzz
         do_test
         ;;
     *)

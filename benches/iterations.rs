@@ -54,7 +54,7 @@ fn main() {
         max_ph_iterations::<f32>(),
     );
     println!(
-        "| case | pH before → after nudge | Newton cold | Newton warm | bisection cold | bisection warm | |ΔpH| Newton vs bisection |"
+        "| case | pH before → after nudge | Newton cold | Newton warm | bisection cold | bisection warm | abs. ΔpH Newton vs bisection |"
     );
     println!("|---|---|---|---|---|---|---|");
     table::<f64>("f64");

@@ -1,0 +1,275 @@
+//! Fuzz target `solve_composition`: arbitrary bytes → a composition (up to 16 composition
+//! changes: catalogue systems, substances, strong ions, custom systems, temperature, activity,
+//! mixing) → one of five ways of solving it. Errors are fine; panics, hangs and broken
+//! invariants of a successful solve are not.
+//!
+//! Byte layout (every read past the end yields 0, so any input is valid):
+//! `flags` (bit 0 f32, bit 1 Davies, bit 2 capacity 3 instead of 8) · `ops` (count mod 17) ·
+//! ops … · `solve mode` · mode arguments. Amounts, pH and temperatures come either from raw
+//! float bits (NaN, ±inf, negative, huge, subnormal) or from a plausible range, chosen by a
+//! tag byte, so the fuzzer reaches both the error paths and the solver.
+#![no_main]
+
+use libfuzzer_sys::fuzz_target;
+use phdose::Real;
+use phdose::chem::catalogue::ALL;
+use phdose::chem::substance::SUBSTANCES;
+use phdose::chem::{
+    AcidBaseSystem, Activity, DAVIES_MAX_IONIC_STRENGTH, Equilibrium, LogK, MAX_ACTIVITY_ITERATIONS, PH_MAX, PH_MIN,
+    Solution, SolverOptions, max_ph_iterations, salt,
+};
+use phdose::units::Celsius;
+
+/// Little byte reader that never fails.
+struct Input<'a> {
+    data: &'a [u8],
+    pos: usize,
+}
+
+impl Input<'_> {
+    fn u8(&mut self) -> u8 {
+        let b = self.data.get(self.pos).copied().unwrap_or(0);
+        self.pos = self.pos.saturating_add(1);
+        b
+    }
+    /// `true` for an even byte.
+    fn flag(&mut self) -> bool {
+        self.u8() & 1 == 0
+    }
+    fn u16(&mut self) -> u16 {
+        u16::from_le_bytes([self.u8(), self.u8()])
+    }
+    fn u32(&mut self) -> u32 {
+        u32::from_le_bytes([self.u8(), self.u8(), self.u8(), self.u8()])
+    }
+    fn u64(&mut self) -> u64 {
+        u64::from(self.u32()) | (u64::from(self.u32()) << 32)
+    }
+
+    /// Edge values every float input should survive.
+    fn special(&mut self) -> f64 {
+        const SPECIAL: [f64; 18] = [
+            0.0,
+            -0.0,
+            f64::NAN,
+            f64::INFINITY,
+            f64::NEG_INFINITY,
+            20.0,
+            20.000_000_000_000_004,
+            19.999_999,
+            f64::MIN_POSITIVE,
+            5e-324,
+            1e-300,
+            1e300,
+            f64::MAX,
+            -1e-12,
+            1e-7,
+            0.5,
+            3.4e38,
+            1e-40,
+        ];
+        SPECIAL[usize::from(self.u8()) % SPECIAL.len()]
+    }
+
+    /// An amount (mol/L): raw bits, an edge value, or plausible 0–20 mol/L on a log scale.
+    fn amount(&mut self) -> f64 {
+        match self.u8() % 6 {
+            0 => f64::from_bits(self.u64()),
+            1 => f64::from(f32::from_bits(self.u32())),
+            2 => self.special(),
+            3 => f64::from(self.u32()) / f64::from(u32::MAX) * 20.0,
+            _ => {
+                // mantissa 0–1 × 10^-(0..=12): dilute waters, where real plants live.
+                let m = f64::from(self.u16()) / f64::from(u16::MAX);
+                m * 10f64.powi(-i32::from(self.u8() % 13))
+            }
+        }
+    }
+
+    /// A pH: raw bits, an edge value, or −3 … 19 (beyond the search bracket on both sides).
+    fn ph(&mut self) -> f64 {
+        match self.u8() % 4 {
+            0 => f64::from_bits(self.u64()),
+            1 => self.special(),
+            _ => f64::from(self.u16()) / f64::from(u16::MAX) * 22.0 - 3.0,
+        }
+    }
+
+    /// A temperature (°C): raw bits, an edge value, or −5 … 105 °C.
+    fn celsius(&mut self) -> f64 {
+        match self.u8() % 4 {
+            0 => f64::from_bits(self.u64()),
+            1 => self.special(),
+            _ => f64::from(self.u16()) / f64::from(u16::MAX) * 110.0 - 5.0,
+        }
+    }
+
+    /// A coefficient of a custom log K: raw bits or a plausible pK-sized value.
+    fn coefficient(&mut self) -> f64 {
+        match self.u8() % 3 {
+            0 => f64::from_bits(self.u64()),
+            1 => self.special(),
+            _ => f64::from(self.u16()) / f64::from(u16::MAX) * 30.0 - 15.0,
+        }
+    }
+}
+
+const CUSTOM_KEYS: [&str; 3] = ["fuzz-a", "fuzz-b", "fuzz-c"];
+
+fn custom_system(inp: &mut Input<'_>) -> AcidBaseSystem {
+    let key = CUSTOM_KEYS[usize::from(inp.u8()) % CUSTOM_KEYS.len()];
+    let steps = inp.u8() % 5; // 0 and 4 are invalid on purpose
+    let mut log_k = [LogK::analytic(0.0, 0.0, 0.0, 0.0, 0.0); 3];
+    for k in &mut log_k {
+        *k = if inp.flag() {
+            LogK::vant_hoff(inp.coefficient(), inp.coefficient())
+        } else {
+            LogK::analytic(
+                inp.coefficient(),
+                inp.coefficient(),
+                inp.coefficient(),
+                inp.coefficient(),
+                inp.coefficient(),
+            )
+        };
+    }
+    AcidBaseSystem {
+        key,
+        forms: ["HxA", "Hx-1A", "Hx-2A", "Hx-3A"],
+        steps,
+        log_k,
+        charge_protonated: i8::from_le_bytes([inp.u8()]),
+        parent_acid: "HxA",
+    }
+}
+
+/// Invariants of every successful solve. `per_solve_limit` is the iteration limit of one inner
+/// solve; `cold_ionic` is 1 when the solve had no warm ionic strength (Davies mode then spends
+/// one evaluation on the initial ionic strength, counted in `iterations`), else 0.
+fn check<R: Real, const N: usize>(s: &Solution<R, N>, eq: &Equilibrium<R>, per_solve_limit: u32, cold_ionic: u32) {
+    let ph = eq.ph.to_f64();
+    assert!(ph.is_finite() && (PH_MIN..=PH_MAX).contains(&ph), "pH {ph} outside [{PH_MIN}, {PH_MAX}]");
+    // Documented bound (src/chem/solve.rs): one inner solve ≤ min(limit, max_ph_iterations);
+    // Davies sums at most MAX_ACTIVITY_ITERATIONS inner solves (+ the initial evaluation).
+    let bound = match s.activity() {
+        Activity::Ideal => per_solve_limit,
+        Activity::Davies => MAX_ACTIVITY_ITERATIONS * per_solve_limit + cold_ionic,
+    };
+    assert!(eq.iterations >= 1 && eq.iterations <= bound, "{} iterations, bound {bound}", eq.iterations);
+    let beta = eq.buffer_capacity_mol_per_l_per_ph.to_f64();
+    assert!(beta.is_finite() && beta > 0.0, "buffer capacity {beta}");
+    let ionic = eq.ionic_strength_mol_per_l.to_f64();
+    assert!(ionic.is_finite() && ionic >= 0.0, "ionic strength {ionic}");
+    assert!(eq.residual_eq_per_l.to_f64().is_finite(), "residual {:?}", eq.residual_eq_per_l.to_f64());
+    match s.activity() {
+        Activity::Ideal => assert_eq!(eq.davies_factor.to_f64(), 0.0),
+        Activity::Davies => {
+            assert!(ionic <= DAVIES_MAX_IONIC_STRENGTH, "Davies result at I = {ionic}");
+            assert!(eq.davies_factor.to_f64().is_finite());
+        }
+    }
+    let sp = s.speciate(eq);
+    assert!(sp.h_mol_per_l.to_f64().is_finite() && sp.h_mol_per_l.to_f64() >= 0.0);
+    assert!(sp.oh_mol_per_l.to_f64().is_finite() && sp.oh_mol_per_l.to_f64() >= 0.0);
+    assert_eq!(sp.forms_mol_per_l.len(), s.components().len());
+    for forms in &sp.forms_mol_per_l {
+        for x in forms {
+            let x = x.to_f64();
+            assert!(x.is_finite() && x >= 0.0, "species concentration {x}");
+        }
+    }
+}
+
+fn run<R: Real, const N: usize>(inp: &mut Input<'_>, activity: Activity) {
+    let mut s: Solution<R, N> = Solution::new(Celsius::standard(), activity);
+    let ops = inp.u8() % 17;
+    for _ in 0..ops {
+        let result = match inp.u8() % 8 {
+            0 => s.add_system(ALL[usize::from(inp.u8()) % ALL.len()], R::from_f64(inp.amount())),
+            1 => s.add_strong_ion(i8::from_le_bytes([inp.u8()]), R::from_f64(inp.amount())),
+            2 => {
+                let sub = &SUBSTANCES[usize::from(inp.u8()) % SUBSTANCES.len()];
+                let by_name = inp.flag();
+                s.add_formula(if by_name { sub.name } else { sub.formula }, R::from_f64(inp.amount()))
+            }
+            3 => {
+                let sys = custom_system(inp);
+                s.add_system(&sys, R::from_f64(inp.amount()))
+            }
+            4 => Celsius::new(R::from_f64(inp.celsius())).map(|t| s.set_temperature(t)).map_err(Into::into),
+            5 => {
+                s.set_activity(if inp.flag() { Activity::Ideal } else { Activity::Davies });
+                Ok(())
+            }
+            6 => {
+                let (a, b) = (R::from_f64(inp.amount()), R::from_f64(inp.amount()));
+                let other = s.clone();
+                s.mix(a, &other, b).map(|m| s = m)
+            }
+            _ => {
+                // Salt-hydrolysis analysis of one substance (its own small solution and solve).
+                let sub = &SUBSTANCES[usize::from(inp.u8()) % SUBSTANCES.len()];
+                let t = Celsius::new(R::from_f64(inp.celsius())).unwrap_or_else(|_| Celsius::standard());
+                if let Err(e) = salt::analyse_substance(sub, R::from_f64(inp.amount()), t, s.activity()) {
+                    let _ = format!("{e}");
+                }
+                Ok(())
+            }
+        };
+        if let Err(e) = result {
+            let _ = format!("{e}"); // Display must not panic either
+        }
+    }
+    let _ = s.charge_excess_eq_per_l(R::from_f64(inp.ph()), R::from_f64(inp.amount()));
+
+    let full = max_ph_iterations::<R>();
+    let outcome = match inp.u8() % 5 {
+        0 => s.solve().map(|eq| check(&s, &eq, full, 1)),
+        1 => s.solve_from(R::from_f64(inp.ph())).map(|eq| check(&s, &eq, full, 1)),
+        2 => {
+            // Control loop: solve, change the strong charge a little, solve warm.
+            s.solve().and_then(|first| {
+                check(&s, &first, full, 1);
+                let mut next = s.clone();
+                let _ = next.add_strong_ion(i8::from_le_bytes([inp.u8()]), R::from_f64(inp.amount()));
+                next.solve_warm(&first).map(|eq| check(&next, &eq, full, 0))
+            })
+        }
+        3 => {
+            let warm_start_ph = if inp.flag() { Some(R::from_f64(inp.ph())) } else { None };
+            let warm_start_ionic_strength = if inp.flag() { Some(R::from_f64(inp.amount())) } else { None };
+            let max_iterations = if inp.flag() { inp.u32() % 100 } else { inp.u32() };
+            let newton = inp.flag();
+            let options = SolverOptions { warm_start_ph, warm_start_ionic_strength, max_iterations, newton };
+            let extra = u32::from(warm_start_ionic_strength.is_none());
+            s.solve_with(options).map(|eq| check(&s, &eq, max_iterations.min(full), extra))
+        }
+        _ => {
+            // Warm start from a fabricated (possibly absurd) previous equilibrium.
+            let previous = Equilibrium {
+                ph: R::from_f64(inp.ph()),
+                iterations: inp.u32(),
+                buffer_capacity_mol_per_l_per_ph: R::from_f64(inp.amount()),
+                ionic_strength_mol_per_l: R::from_f64(inp.amount()),
+                residual_eq_per_l: R::from_f64(inp.amount()),
+                davies_factor: R::from_f64(inp.amount()),
+            };
+            s.solve_warm(&previous).map(|eq| check(&s, &eq, full, 0))
+        }
+    };
+    if let Err(e) = outcome {
+        let _ = format!("{e}");
+    }
+}
+
+fuzz_target!(|data: &[u8]| {
+    let mut inp = Input { data, pos: 0 };
+    let flags = inp.u8();
+    let activity = if flags & 2 == 0 { Activity::Ideal } else { Activity::Davies };
+    match (flags & 1 == 0, flags & 4 == 0) {
+        (true, true) => run::<f64, 8>(&mut inp, activity),
+        (true, false) => run::<f64, 3>(&mut inp, activity),
+        (false, true) => run::<f32, 8>(&mut inp, activity),
+        (false, false) => run::<f32, 3>(&mut inp, activity),
+    }
+});
