@@ -265,6 +265,32 @@ mod tests {
         assert!((a.total_mg_per_l_as_caco3() - 150.0).abs() < 3.0);
     }
 
+    #[test]
+    fn phenolphthalein_and_total_follow_the_standard_methods_table() {
+        // SM 2320 B alkalinity relationships (REFERENCE-VALUES §8, checked in public
+        // reproductions of the SM table): P = 0 → bicarbonate only; 2P < T → carbonate = 2P,
+        // bicarbonate = T − 2P; 2P > T → hydroxide = 2P − T, carbonate = 2(T − P). The model's
+        // endpoint capacities include the small water and CO2-side terms, so within 3 %.
+        let water = |recipe: &[(&str, f64)]| {
+            let mut s: Solution<f64, 2> = Solution::new(Celsius::new(20.0).unwrap(), Activity::Ideal);
+            for (f, c) in recipe {
+                s.add_formula(f, *c).unwrap();
+            }
+            let a = alkalinity(&s).unwrap();
+            (a.phenolphthalein_eq_per_l * 1000.0, a.total_eq_per_l * 1000.0)
+        };
+        let close = |got: f64, want: f64| (got - want).abs() <= 0.03 * want.max(0.1);
+        // Bicarbonate only (pH ≈ 8.3): P ≈ 0, T = 2 meq/L.
+        let (p, t) = water(&[("NaHCO3", 0.002)]);
+        assert!(p < 0.05 && close(t, 2.0), "{p} {t}");
+        // Carbonate 0.5 mM + bicarbonate 1 mM: 2P < T; carbonate alkalinity 2P = 1 meq/L.
+        let (p, t) = water(&[("Na2CO3", 0.0005), ("NaHCO3", 0.001)]);
+        assert!(2.0 * p < t && close(2.0 * p, 1.0) && close(t - 2.0 * p, 1.0), "{p} {t}");
+        // Hydroxide 1 mM + carbonate 1 mM: 2P > T; OH = 2P − T = 1, CO3 = 2(T − P) = 2 meq/L.
+        let (p, t) = water(&[("NaOH", 0.001), ("Na2CO3", 0.001)]);
+        assert!(2.0 * p > t && close(2.0 * p - t, 1.0) && close(2.0 * (t - p), 2.0), "{p} {t}");
+    }
+
     fn simulated_titration(points: usize) -> (std::vec::Vec<AcidPoint<f64>>, f64) {
         // 100 mL of make-up water titrated with 0.02 N H2SO4 (0.01 M), computed by the model.
         let sample = makeup();
