@@ -7,69 +7,12 @@
 //! core crate's tests.
 #![allow(clippy::unwrap_used, clippy::expect_used, clippy::indexing_slicing, clippy::panic)]
 
-use std::io::Write;
-use std::process::{Command, Stdio};
+mod common;
 
+use std::process::Command;
+
+use common::{json_error, num, ok_json, run, table_error};
 use serde_json::Value;
-
-struct Run {
-    code: i32,
-    stdout: String,
-    stderr: String,
-}
-
-fn run(args: &[&str], stdin: &str) -> Run {
-    let mut child = Command::new(env!("CARGO_BIN_EXE_phdose"))
-        .args(args)
-        .stdin(Stdio::piped())
-        .stdout(Stdio::piped())
-        .stderr(Stdio::piped())
-        .spawn()
-        .expect("spawn phdose");
-    // The binary may exit before reading stdin (argument errors): ignore a broken pipe here.
-    let _ = child.stdin.take().unwrap().write_all(stdin.as_bytes());
-    let out = child.wait_with_output().unwrap();
-    Run {
-        code: out.status.code().expect("exited normally, not by a signal"),
-        stdout: String::from_utf8(out.stdout).unwrap(),
-        stderr: String::from_utf8(out.stderr).unwrap(),
-    }
-}
-
-/// Runs a JSON-mode command that must succeed and returns the parsed document.
-fn ok_json(args: &[&str], stdin: &str) -> Value {
-    let r = run(args, stdin);
-    assert_eq!(r.code, 0, "phdose {args:?} failed: {}{}", r.stdout, r.stderr);
-    assert!(r.stderr.is_empty(), "unexpected stderr: {}", r.stderr);
-    serde_json::from_str(&r.stdout).unwrap_or_else(|e| panic!("stdout is not JSON ({e}): {}", r.stdout))
-}
-
-/// Runs a JSON-mode command that must fail: exit 2, `{"error": "..."}` on stdout, no panic.
-fn json_error(args: &[&str], stdin: &str) -> String {
-    let r = run(args, stdin);
-    assert_eq!(r.code, 2, "phdose {args:?} with {stdin:?}: expected exit 2, got {}: {}", r.code, r.stdout);
-    assert!(!r.stderr.contains("panicked") && !r.stderr.contains("backtrace"), "{}", r.stderr);
-    let doc: Value = serde_json::from_str(&r.stdout).unwrap_or_else(|e| panic!("not JSON ({e}): {}", r.stdout));
-    let obj = doc.as_object().expect("error document is an object");
-    let msg = obj.get("error").and_then(Value::as_str).expect("\"error\" is a string");
-    assert!(!msg.is_empty());
-    msg.to_owned()
-}
-
-/// Runs a table-mode command that must fail: exit 2, nothing on stdout, one `error:` line.
-fn table_error(args: &[&str]) -> String {
-    let r = run(args, "");
-    assert_eq!(r.code, 2, "phdose {args:?}: expected exit 2, got {}", r.code);
-    assert!(r.stdout.is_empty(), "stdout should be empty: {}", r.stdout);
-    assert!(r.stderr.starts_with("error: "), "{}", r.stderr);
-    assert_eq!(r.stderr.trim_end().lines().count(), 1, "one line expected: {}", r.stderr);
-    assert!(!r.stderr.contains("panicked"), "{}", r.stderr);
-    r.stderr
-}
-
-fn num(v: &Value, key: &str) -> f64 {
-    v.get(key).and_then(Value::as_f64).unwrap_or_else(|| panic!("number \"{key}\" missing in {v}"))
-}
 
 /// Checks a speciate document's internal consistency: every system's forms appear in
 /// "species" and sum to its total, and the charges (species plus strong ions) balance.

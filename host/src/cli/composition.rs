@@ -25,16 +25,26 @@ pub struct Dissolved {
     pub mol_per_l: f64,
 }
 
-/// Resolves every substance name; refuses unknown names and a substance named twice.
-pub fn resolve(entries: Vec<(String, f64)>) -> Result<Vec<Dissolved>, CliError> {
+/// An error about part `what` of a request ("sample", "influent"): `what` goes first, unless
+/// it is empty.
+fn in_part(what: &str, message: String) -> CliError {
+    if what.is_empty() { CliError::new(message) } else { CliError::new(format!("{what}: {message}")) }
+}
+
+/// Resolves every substance name; refuses unknown names and a substance named twice. `what`
+/// ("sample", "influent") prefixes the errors; empty for none.
+pub fn resolve(entries: Vec<(String, f64)>, what: &str) -> Result<Vec<Dissolved>, CliError> {
     let mut dissolved: Vec<Dissolved> = Vec::with_capacity(entries.len());
     for (given_as, mol_per_l) in entries {
-        let substance = substance::find(&given_as).map_err(|e| CliError::new(format!("'{given_as}': {e}")))?;
+        let substance = substance::find(&given_as).map_err(|e| in_part(what, format!("'{given_as}': {e}")))?;
         if let Some(first) = dissolved.iter().find(|d| d.substance.formula == substance.formula) {
-            return Err(CliError::new(format!(
-                "{} is given twice ('{}' and '{given_as}'); give each substance once",
-                substance.formula, first.given_as
-            )));
+            return Err(in_part(
+                what,
+                format!(
+                    "{} is given twice ('{}' and '{given_as}'); give each substance once",
+                    substance.formula, first.given_as
+                ),
+            ));
         }
         dissolved.push(Dissolved { given_as, substance, mol_per_l });
     }
@@ -55,6 +65,17 @@ pub fn parse_pairs<S: AsRef<str>>(items: &[S]) -> Result<Vec<(String, f64)>, Cli
     Ok(entries)
 }
 
+/// The `SUBSTANCE=MOL_PER_L` arguments of a command, at least one: with none, the error opens
+/// with `none` ("no sample") and shows `example` ("NaOH=0.001 Na2CO3=0.002").
+pub fn parse_positionals(positionals: &[String], none: &str, example: &str) -> Result<Vec<(String, f64)>, CliError> {
+    if positionals.is_empty() {
+        return Err(CliError::new(format!(
+            "{none}: give SUBSTANCE=MOL_PER_L arguments (e.g. {example}), or --example"
+        )));
+    }
+    parse_pairs(positionals)
+}
+
 /// The solution of `dissolved` under `conditions`; `what` ("influent", "sample") prefixes
 /// composition errors.
 pub fn solution<const N: usize>(
@@ -64,13 +85,7 @@ pub fn solution<const N: usize>(
 ) -> Result<Solution<f64, N>, CliError> {
     let mut s = Solution::new(conditions.temperature, conditions.activity);
     for d in dissolved {
-        s.add_substance(d.substance, d.mol_per_l).map_err(|e| {
-            if what.is_empty() {
-                CliError::new(format!("{}: {e}", d.given_as))
-            } else {
-                CliError::new(format!("{what}: {}: {e}", d.given_as))
-            }
-        })?;
+        s.add_substance(d.substance, d.mol_per_l).map_err(|e| in_part(what, format!("{}: {e}", d.given_as)))?;
     }
     Ok(s)
 }
@@ -92,15 +107,27 @@ mod tests {
 
     #[test]
     fn names_pairs_and_solutions() {
-        let d = resolve(parse_pairs(&["sodium bicarbonate=2e-3", "HCl = 0.001"]).unwrap()).unwrap();
+        let d = resolve(parse_pairs(&["sodium bicarbonate=2e-3", "HCl = 0.001"]).unwrap(), "").unwrap();
         assert_eq!(d.iter().map(|x| x.substance.formula).collect::<Vec<_>>(), ["NaHCO3", "HCl"]);
         let s: HostSolution = solution(Conditions::new(None, None).unwrap(), &d, "influent").unwrap();
         assert!((s.total_of("carbonate") - 2e-3).abs() < 1e-18);
-        assert!(resolve(vec![("HCl".into(), 1.0), ("hydrochloric acid".into(), 1.0)]).is_err());
+        assert!(resolve(vec![("HCl".into(), 1.0), ("hydrochloric acid".into(), 1.0)], "").is_err());
         assert!(parse_pairs(&["HCl"]).is_err());
-        let neg = resolve(vec![("HCl".into(), -1.0)]).unwrap();
+        let neg = resolve(vec![("HCl".into(), -1.0)], "").unwrap();
         let e = solution::<2>(Conditions::new(None, None).unwrap(), &neg, "influent").unwrap_err();
         assert!(e.message().starts_with("influent: HCl: "), "{e}");
         assert_eq!(describe(&[]), "nothing (pure water)");
+    }
+
+    #[test]
+    fn errors_name_the_part_and_missing_arguments() {
+        let e = resolve(vec![("NaXYZ".into(), 1.0)], "sample").unwrap_err();
+        assert!(e.message().starts_with("sample: 'NaXYZ': "), "{e}");
+        let e = resolve(vec![("HCl".into(), 1.0), ("hydrochloric acid".into(), 1.0)], "influent").unwrap_err();
+        assert!(e.message().starts_with("influent: HCl is given twice"), "{e}");
+        assert!(resolve(vec![("NaXYZ".into(), 1.0)], "").unwrap_err().message().starts_with("'NaXYZ': "));
+        let e = parse_positionals(&[], "no sample", "NaOH=0.001").unwrap_err();
+        assert_eq!(e.message(), "no sample: give SUBSTANCE=MOL_PER_L arguments (e.g. NaOH=0.001), or --example");
+        assert_eq!(parse_positionals(&["HCl=0.001".to_owned()], "no sample", "").unwrap(), [("HCl".to_owned(), 0.001)]);
     }
 }

@@ -4,6 +4,7 @@ use phdose::chem::Activity;
 use phdose::units::Celsius;
 
 use super::CliError;
+use super::args;
 
 /// Temperature used when none is given, °C.
 pub const DEFAULT_TEMPERATURE_C: f64 = 25.0;
@@ -25,6 +26,17 @@ impl Conditions {
             Celsius::new(temperature_c.unwrap_or(DEFAULT_TEMPERATURE_C)).map_err(|e| CliError::new(e.to_string()))?;
         let activity = activity.map_or(Ok(Activity::Davies), parse_activity)?;
         Ok(Self { temperature, activity })
+    }
+
+    /// From the `--temperature-c` and `--activity` values as given on the command line;
+    /// `default_temperature_c` stands in for a missing `--temperature-c` (`None`: 25 °C).
+    pub fn from_flags(
+        temperature_c: Option<&str>,
+        activity: Option<&str>,
+        default_temperature_c: Option<f64>,
+    ) -> Result<Self, CliError> {
+        let t = temperature_c.map(|t| args::number(args::TEMPERATURE.name, t)).transpose()?;
+        Self::new(t.or(default_temperature_c), activity)
     }
 
     /// Temperature, °C.
@@ -69,5 +81,16 @@ mod tests {
         assert_eq!(Conditions::new(Some(18.0), Some("IDEAL")).unwrap().activity, Activity::Ideal);
         assert!(Conditions::new(Some(101.0), None).is_err());
         assert!(Conditions::new(None, Some("debye")).is_err());
+    }
+
+    #[test]
+    fn from_flag_values() {
+        assert_eq!(Conditions::from_flags(None, None, None).unwrap(), Conditions::new(None, None).unwrap());
+        let c = Conditions::from_flags(Some("18"), Some("ideal"), Some(30.0)).unwrap();
+        assert_eq!((c.celsius(), c.activity), (18.0, Activity::Ideal));
+        assert_eq!(Conditions::from_flags(None, None, Some(30.0)).unwrap().celsius(), 30.0);
+        let e = Conditions::from_flags(Some("warm"), None, None).unwrap_err();
+        assert!(e.message().starts_with("--temperature-c: "), "{e}");
+        assert!(Conditions::from_flags(Some("150"), None, None).is_err());
     }
 }

@@ -1,6 +1,7 @@
 //! Writing the optional output files (`--csv`, `--svg`).
 
 use super::CliError;
+use crate::plot::Plot;
 
 /// Writes `content` to `path`; `what` ("CSV", "SVG") names the file in the error.
 pub fn write(path: &str, content: &str, what: &str) -> Result<(), CliError> {
@@ -8,6 +9,13 @@ pub fn write(path: &str, content: &str, what: &str) -> Result<(), CliError> {
         return Err(CliError::new(format!("{what} file name is empty")));
     }
     std::fs::write(path, content).map_err(|e| CliError::new(format!("cannot write {what} file '{path}': {e}")))
+}
+
+/// Renders `plot` as SVG and writes it to `path`; returns the line the table reports it with.
+pub fn write_svg(path: &str, plot: &Plot) -> Result<String, CliError> {
+    let svg = crate::plot::render(plot).map_err(|e| CliError::new(format!("SVG: {e}")))?;
+    write(path, &svg, "SVG")?;
+    Ok(format!("wrote SVG plot to {path}"))
 }
 
 /// Reads a text file of at most `max_bytes`; `what` names it in the error.

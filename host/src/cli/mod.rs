@@ -11,11 +11,13 @@ mod fit;
 mod format;
 mod help;
 mod json;
+mod layout;
 mod plan;
 mod reagent;
 mod salt;
 mod speciate;
 mod substances;
+mod volume;
 
 use std::ffi::OsString;
 use std::io::{self, Read, Write};

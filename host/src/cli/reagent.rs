@@ -80,7 +80,7 @@ impl Reagent {
         if entries.iter().all(|(_, c)| *c == 0.0) {
             return Err(CliError::new(format!("{what}: every amount is 0; the {what} would be plain water")));
         }
-        let dissolved = composition::resolve(entries).map_err(|e| CliError::new(format!("{what}: {e}")))?;
+        let dissolved = composition::resolve(entries, what)?;
         Ok(Self { dissolved, grade: None })
     }
 

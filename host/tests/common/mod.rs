@@ -1,5 +1,5 @@
-//! Helpers shared by the `plan`, `curve` and `fit` CLI tests: run the built binary, parse its
-//! JSON, check the error contract (exit 2, `{"error": ...}` or one `error:` line, no panic).
+//! Helpers shared by the CLI tests (`cli`, `plan`, `curve`, `fit`): run the built binary, parse
+//! its JSON, check the error contract (exit 2, `{"error": ...}` or one `error:` line, no panic).
 #![allow(dead_code, clippy::unwrap_used, clippy::expect_used, clippy::indexing_slicing, clippy::panic)]
 
 use std::io::Write;
@@ -54,7 +54,11 @@ pub fn ok_table(args: &[&str]) -> String {
 pub fn json_error(args: &[&str], stdin: &str) -> String {
     let r = run(args, stdin);
     assert_eq!(r.code, 2, "phdose {args:?} with {stdin:?}: expected exit 2, got {}: {}", r.code, r.stdout);
-    assert!(!r.stderr.contains("panicked") && !r.stderr.contains("internal error"), "{}", r.stderr);
+    assert!(
+        !r.stderr.contains("panicked") && !r.stderr.contains("backtrace") && !r.stderr.contains("internal error"),
+        "{}",
+        r.stderr
+    );
     let doc: Value = serde_json::from_str(&r.stdout).unwrap_or_else(|e| panic!("not JSON ({e}): {}", r.stdout));
     let obj = doc.as_object().expect("error document is an object");
     assert_eq!(obj.len(), 1, "only the error key: {doc}");

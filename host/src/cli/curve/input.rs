@@ -9,6 +9,7 @@ use crate::cli::composition::{self, Dissolved};
 use crate::cli::conditions::Conditions;
 use crate::cli::json::{self, Entries};
 use crate::cli::reagent::{Reagent, ReagentJson};
+use crate::cli::volume;
 
 /// `--sample-ml`.
 pub const SAMPLE_ML: Spec = Spec { name: "--sample-ml", takes_value: true };
@@ -95,14 +96,8 @@ impl CurveInput {
         max_titrant_l: f64,
         points: f64,
     ) -> Result<Self, CliError> {
-        if !(sample_volume_l.is_finite() && sample_volume_l > 0.0 && sample_volume_l <= 1000.0) {
-            return Err(CliError::new(format!("sample volume {sample_volume_l} L must be above 0 and at most 1000 L")));
-        }
-        if !(max_titrant_l.is_finite() && max_titrant_l > 0.0 && max_titrant_l <= 1000.0) {
-            return Err(CliError::new(format!(
-                "max titrant volume {max_titrant_l} L must be above 0 and at most 1000 L"
-            )));
-        }
+        volume::check_l("sample volume", sample_volume_l)?;
+        volume::check_l("max titrant volume", max_titrant_l)?;
         let points = check_points(points)?;
         Ok(Self { conditions, sample, sample_volume_l, titrant, max_titrant_l, points })
     }
@@ -111,7 +106,7 @@ impl CurveInput {
     pub fn from_json(text: &str) -> Result<Self, CliError> {
         let r: Request = json::parse(text, JSON_EXAMPLE)?;
         let conditions = Conditions::new(r.temperature_c, r.activity.as_deref())?;
-        let sample = composition::resolve(r.sample.dissolved.0).map_err(|e| CliError::new(format!("sample: {e}")))?;
+        let sample = composition::resolve(r.sample.dissolved.0, "sample")?;
         let titrant = Reagent::from_json(r.titrant, "titrant")?;
         let points = r.points.unwrap_or(DEFAULT_POINTS as f64);
         Self::new(conditions, sample, r.sample.volume_l, titrant, r.max_titrant_l, points)
@@ -120,7 +115,7 @@ impl CurveInput {
     /// The built-in example; `points` overrides its resolution.
     pub fn example(points: Option<&str>) -> Result<Self, CliError> {
         let conditions = Conditions::new(Some(example::TEMPERATURE_C), None)?;
-        let sample = composition::resolve(example::DISSOLVED.iter().map(|(f, c)| ((*f).to_owned(), *c)).collect())?;
+        let sample = composition::resolve(example::DISSOLVED.iter().map(|(f, c)| ((*f).to_owned(), *c)).collect(), "")?;
         let titrant = Reagent::dissolved(vec![(example::TITRANT.0.to_owned(), example::TITRANT.1)], "titrant")?;
         let points = points.map(|p| args::number("--points", p)).transpose()?.unwrap_or(DEFAULT_POINTS as f64);
         Self::new(conditions, sample, example::SAMPLE_ML / 1000.0, titrant, example::MAX_TITRANT_ML / 1000.0, points)
@@ -128,13 +123,8 @@ impl CurveInput {
 
     /// From the command line: sample `SUBSTANCE=MOL_PER_L` positionals and the options.
     pub fn from_flags(p: &Parsed) -> Result<Self, CliError> {
-        if p.positionals.is_empty() {
-            return Err(CliError::new(
-                "no sample: give SUBSTANCE=MOL_PER_L arguments (e.g. NaOH=0.001 Na2CO3=0.002), or --example",
-            ));
-        }
-        let sample = composition::resolve(composition::parse_pairs(&p.positionals)?)
-            .map_err(|e| CliError::new(format!("sample: {e}")))?;
+        let entries = composition::parse_positionals(&p.positionals, "no sample", "NaOH=0.001 Na2CO3=0.002")?;
+        let sample = composition::resolve(entries, "sample")?;
         let need = |spec: Spec| -> Result<&str, CliError> {
             p.value(spec).ok_or_else(|| CliError::new(format!("missing {} (or use --example)", spec.name)))
         };
@@ -142,8 +132,7 @@ impl CurveInput {
         let titrant = Reagent::from_flag(need(TITRANT)?, None, "titrant")?;
         let max_ml = args::number(MAX_TITRANT_ML.name, need(MAX_TITRANT_ML)?)?;
         let points = p.value(POINTS).map(|v| args::number("--points", v)).transpose()?;
-        let t = p.value(args::TEMPERATURE).map(|t| args::number("--temperature-c", t)).transpose()?;
-        let conditions = Conditions::new(t, p.value(args::ACTIVITY))?;
+        let conditions = Conditions::from_flags(p.value(args::TEMPERATURE), p.value(args::ACTIVITY), None)?;
         Self::new(
             conditions,
             sample,

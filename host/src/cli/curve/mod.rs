@@ -52,9 +52,7 @@ pub fn run(argv: &[String], mode: Mode, stdin: &mut dyn Read) -> Result<String, 
         written.push(format!("wrote CSV to {path}"));
     }
     if let Some(path) = p.value(SVG) {
-        let svg = crate::plot::render(&table::plot(&report)).map_err(|e| CliError::new(format!("SVG: {e}")))?;
-        files::write(path, &svg, "SVG")?;
-        written.push(format!("wrote SVG plot to {path}"));
+        written.push(files::write_svg(path, &table::plot(&report))?);
     }
     match mode {
         Mode::Json => json::render(&report, p.value(CSV), p.value(SVG)),

@@ -6,20 +6,15 @@ use super::report::{CurveReport, model_label};
 use crate::cli::caution::CAUTION;
 use crate::cli::composition;
 use crate::cli::format::{fixed, sci, sig};
+use crate::cli::layout;
 use crate::plot::{Corner, Marker, MarkerSet, Plot, Series, Style};
 
 /// Renders the table; `title` (used by `--example`) goes first; `written` lists files written.
 pub fn render(r: &CurveReport, title: Option<&str>, written: &[String]) -> String {
     let i = &r.input;
     let c = i.conditions;
-    let activity = match c.activity_name() {
-        "ideal" => "ideal activities (γ = 1)",
-        _ => "Davies activities",
-    };
-    let mut s = String::new();
-    if let Some(t) = title {
-        let _ = writeln!(s, "{t}");
-    }
+    let activity = layout::activity(c.activity);
+    let mut s = layout::start(title);
     let _ = writeln!(s, "Titration curve at {:.1} °C, {activity}", c.celsius());
     let _ = writeln!(s, "sample    {} mL: {}", sig(i.sample_volume_l * 1000.0, 6), composition::describe(&i.sample));
     let _ = writeln!(s, "titrant   {}, 0 to {} mL", i.titrant.describe(), sig(i.max_titrant_l * 1000.0, 6));
@@ -50,15 +45,7 @@ pub fn render(r: &CurveReport, title: Option<&str>, written: &[String]) -> Strin
     for e in &r.model {
         let _ = writeln!(s, "  {:>9} mL   pH {}   {}", fixed(e.titrant_l * 1000.0, 3), fixed(e.ph, 2), model_label(e));
     }
-    if !written.is_empty() {
-        let _ = writeln!(s);
-        for w in written {
-            let _ = writeln!(s, "{w}");
-        }
-    }
-    let _ = writeln!(s);
-    let _ = writeln!(s, "{CAUTION}");
-    s
+    layout::finish(s, written, CAUTION)
 }
 
 /// The plot: pH against titrant mL, curve-found equivalence points as filled circles labelled

@@ -9,6 +9,7 @@ use crate::cli::conditions::Conditions;
 use crate::cli::files;
 use crate::cli::json;
 use crate::cli::reagent::{Reagent, ReagentJson};
+use crate::cli::volume;
 
 /// `--data FILE`.
 pub const DATA: Spec = Spec { name: "--data", takes_value: true };
@@ -154,9 +155,7 @@ impl FitInput {
         carbonate: bool,
         buffers: u8,
     ) -> Result<Self, CliError> {
-        if !(sample_volume_l.is_finite() && sample_volume_l > 0.0 && sample_volume_l <= 1000.0) {
-            return Err(CliError::new(format!("sample volume {sample_volume_l} L must be above 0 and at most 1000 L")));
-        }
+        volume::check_l("sample volume", sample_volume_l)?;
         if buffers > 2 {
             return Err(CliError::new(format!("buffers {buffers} must be 0, 1 or 2")));
         }
@@ -222,8 +221,7 @@ impl FitInput {
             p.value(SAMPLE_ML).ok_or_else(|| CliError::new("missing --sample-ml (the sample volume titrated)"))?,
         )?;
         let buffers = p.value(BUFFERS).map(|b| check_buffers(args::number("--buffers", b)?)).transpose()?;
-        let t = p.value(args::TEMPERATURE).map(|t| args::number("--temperature-c", t)).transpose()?;
-        let conditions = Conditions::new(t, p.value(args::ACTIVITY))?;
+        let conditions = Conditions::from_flags(p.value(args::TEMPERATURE), p.value(args::ACTIVITY), None)?;
         Self::new(conditions, sample_ml / 1000.0, titrant, points, p.has(CARBONATE), buffers.unwrap_or(0))
     }
 }

@@ -50,9 +50,7 @@ pub fn run(argv: &[String], mode: Mode, stdin: &mut dyn Read) -> Result<String, 
     let report = report::compute(request)?;
     let mut written = Vec::new();
     if let Some(path) = p.value(SVG) {
-        let svg = crate::plot::render(&table::plot(&report)).map_err(|e| CliError::new(format!("SVG: {e}")))?;
-        files::write(path, &svg, "SVG")?;
-        written.push(format!("wrote SVG plot to {path}"));
+        written.push(files::write_svg(path, &table::plot(&report))?);
     }
     match mode {
         Mode::Json => json::render(&report, p.value(SVG)),

@@ -5,6 +5,7 @@ use std::fmt::Write;
 use super::report::FitReport;
 use crate::cli::caution::CAUTION;
 use crate::cli::format::{fixed, sig};
+use crate::cli::layout;
 use crate::plot::{Plot, Series, Style};
 
 const LABEL: usize = 18;
@@ -18,14 +19,8 @@ pub fn render(r: &FitReport, title: Option<&str>, written: &[String]) -> String 
     let i = &r.input;
     let e = &r.result.effective;
     let se = &r.result.standard_errors;
-    let activity = match i.conditions.activity_name() {
-        "ideal" => "ideal activities (γ = 1)",
-        _ => "Davies activities",
-    };
-    let mut s = String::new();
-    if let Some(t) = title {
-        let _ = writeln!(s, "{t}");
-    }
+    let activity = layout::activity(i.conditions.activity);
+    let mut s = layout::start(title);
     let _ = writeln!(s, "Effective composition fitted to {} lab points", r.result.points);
     let _ = writeln!(
         s,
@@ -76,15 +71,7 @@ pub fn render(r: &FitReport, title: Option<&str>, written: &[String]) -> String 
     let _ = writeln!(s);
     let _ = writeln!(s, "± is one standard error. Buffers are generic monoprotic acids (pKa without temperature");
     let _ = writeln!(s, "dependence); together they stand for whatever buffers the real influent.");
-    if !written.is_empty() {
-        let _ = writeln!(s);
-        for w in written {
-            let _ = writeln!(s, "{w}");
-        }
-    }
-    let _ = writeln!(s);
-    let _ = writeln!(s, "{CAUTION}");
-    s
+    layout::finish(s, written, CAUTION)
 }
 
 /// Lab points as markers, the fitted model as a line.

@@ -132,8 +132,7 @@ impl PlanInput {
     pub fn from_json(text: &str) -> Result<Self, CliError> {
         let r: Request = json::parse(text, JSON_EXAMPLE)?;
         let conditions = Conditions::new(r.temperature_c, r.activity.as_deref())?;
-        let influent =
-            composition::resolve(r.influent.dissolved.0).map_err(|e| CliError::new(format!("influent: {e}")))?;
+        let influent = composition::resolve(r.influent.dissolved.0, "influent")?;
         let reagent = Reagent::from_json(r.reagent, "reagent")?;
         let pump = r.pump.map(|p| Pump { max_l_per_h: p.max_l_per_h, step_l_per_h: p.step_l_per_h });
         Self::new(conditions, influent, r.influent.flow_l_per_h, reagent, r.setpoint_ph, pump, r.band_ph)
@@ -151,21 +150,13 @@ impl PlanInput {
             }
             example::DISSOLVED.iter().map(|(f, c)| ((*f).to_owned(), *c)).collect()
         } else {
-            if p.positionals.is_empty() {
-                return Err(CliError::new(
-                    "no influent: give SUBSTANCE=MOL_PER_L arguments (e.g. NaHCO3=0.002 HCl=0.001), or --example",
-                ));
-            }
-            composition::parse_pairs(&p.positionals)?
+            composition::parse_positionals(&p.positionals, "no influent", "NaHCO3=0.002 HCl=0.001")?
         };
-        let influent = composition::resolve(influent).map_err(|e| CliError::new(format!("influent: {e}")))?;
+        let influent = composition::resolve(influent, "influent")?;
 
-        let t = match num(args::TEMPERATURE)? {
-            Some(t) => Some(t),
-            None if example => Some(example::TEMPERATURE_C),
-            None => None,
-        };
-        let conditions = Conditions::new(t, p.value(args::ACTIVITY))?;
+        let default_temperature_c = example.then_some(example::TEMPERATURE_C);
+        let conditions =
+            Conditions::from_flags(p.value(args::TEMPERATURE), p.value(args::ACTIVITY), default_temperature_c)?;
         let flow = match num(FLOW)? {
             Some(f) => f,
             None if example => example::FLOW_L_PER_H,

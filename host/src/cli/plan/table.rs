@@ -6,6 +6,7 @@ use super::report::PlanReport;
 use crate::cli::caution::PLAN_CAUTION;
 use crate::cli::composition;
 use crate::cli::format::{fixed, sci, sig};
+use crate::cli::layout;
 
 const LABEL: usize = 20;
 
@@ -13,14 +14,8 @@ const LABEL: usize = 20;
 pub fn render(r: &PlanReport, title: Option<&str>) -> String {
     let i = &r.input;
     let c = i.conditions;
-    let activity = match c.activity_name() {
-        "ideal" => "ideal activities (γ = 1)",
-        _ => "Davies activities",
-    };
-    let mut s = String::new();
-    if let Some(t) = title {
-        let _ = writeln!(s, "{t}");
-    }
+    let activity = layout::activity(c.activity);
+    let mut s = layout::start(title);
     let _ = writeln!(s, "Feed-forward dose plan at {:.1} °C, {activity}", c.celsius());
     let _ = writeln!(
         s,
@@ -94,7 +89,5 @@ pub fn render(r: &PlanReport, title: Option<&str>) -> String {
         let _ = writeln!(s, "{:<LABEL$}common practice (a rule of thumb, no checked source), not a computed", "");
         let _ = writeln!(s, "{:<LABEL$}result: within 3 pH of the setpoint 1 stage, within 5 pH 2, beyond 3", "");
     }
-    let _ = writeln!(s);
-    let _ = writeln!(s, "{PLAN_CAUTION}");
-    s
+    layout::finish(s, &[], PLAN_CAUTION)
 }

@@ -62,8 +62,7 @@ impl SaltInput {
             )));
         };
         let mol_per_l = args::number("concentration", amount)?;
-        let t = temperature_c.map(|t| args::number("--temperature-c", t)).transpose()?;
-        Self::new(salt.clone(), mol_per_l, Conditions::new(t, activity)?)
+        Self::new(salt.clone(), mol_per_l, Conditions::from_flags(temperature_c, activity, None)?)
     }
 }
 

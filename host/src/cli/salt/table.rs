@@ -9,6 +9,7 @@ use super::input::SaltInput;
 use super::names;
 use crate::cli::caution::CAUTION;
 use crate::cli::format::{fixed, percent, sci};
+use crate::cli::layout;
 
 const LABEL: usize = 17;
 
@@ -36,10 +37,7 @@ pub fn render(input: &SaltInput, r: &SaltReport<f64>) -> String {
     let c = &input.conditions;
     let eq = &r.equilibrium;
     let name = substance::find(r.formula).map_or("", |s| s.name);
-    let activity = match c.activity_name() {
-        "ideal" => "ideal activities (γ = 1)",
-        _ => "Davies activities",
-    };
+    let activity = layout::activity(c.activity);
     let mut s = String::new();
     let _ = writeln!(
         s,
@@ -75,7 +73,5 @@ pub fn render(input: &SaltInput, r: &SaltReport<f64>) -> String {
     }
     let _ = writeln!(s, "{:<LABEL$}{} mol/L", "ionic strength", sci(eq.ionic_strength_mol_per_l));
     let _ = writeln!(s, "{:<LABEL$}{} mol/L per pH unit", "buffer capacity", sci(eq.buffer_capacity_mol_per_l_per_ph));
-    let _ = writeln!(s);
-    let _ = writeln!(s, "{CAUTION}");
-    s
+    layout::finish(s, &[], CAUTION)
 }

@@ -2,7 +2,6 @@
 
 use super::input::SpeciateInput;
 use crate::cli::CliError;
-use crate::cli::args;
 use crate::cli::conditions::Conditions;
 
 /// First line of the example's table.
@@ -18,10 +17,7 @@ pub const DISSOLVED: [(&str, f64); 3] = [("NaHCO3", 0.002), ("H2SO4", 0.0006), (
 /// The example request; `--temperature-c` / `--activity` values, when given, override its
 /// conditions (18 °C, Davies).
 pub fn input(temperature_c: Option<&str>, activity: Option<&str>) -> Result<SpeciateInput, CliError> {
-    let t = match temperature_c {
-        Some(t) => args::number("--temperature-c", t)?,
-        None => TEMPERATURE_C,
-    };
+    let conditions = Conditions::from_flags(temperature_c, activity, Some(TEMPERATURE_C))?;
     let entries = DISSOLVED.iter().map(|(f, c)| ((*f).to_owned(), *c)).collect();
-    SpeciateInput::new(Conditions::new(Some(t), activity)?, entries)
+    SpeciateInput::new(conditions, entries)
 }

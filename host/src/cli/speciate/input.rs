@@ -3,9 +3,8 @@
 use serde::Deserialize;
 
 use crate::cli::CliError;
-use crate::cli::args;
+use crate::cli::composition;
 pub use crate::cli::composition::Dissolved;
-use crate::cli::composition::{self, parse_pairs};
 use crate::cli::conditions::Conditions;
 use crate::cli::json::{self, Entries};
 
@@ -35,7 +34,7 @@ struct Request {
 impl SpeciateInput {
     /// Resolves every substance name; refuses unknown names and a substance named twice.
     pub fn new(conditions: Conditions, entries: Vec<(String, f64)>) -> Result<Self, CliError> {
-        Ok(Self { conditions, dissolved: composition::resolve(entries)? })
+        Ok(Self { conditions, dissolved: composition::resolve(entries, "")? })
     }
 
     /// From the JSON request text.
@@ -51,14 +50,8 @@ impl SpeciateInput {
         temperature_c: Option<&str>,
         activity: Option<&str>,
     ) -> Result<Self, CliError> {
-        if positionals.is_empty() {
-            return Err(CliError::new(
-                "nothing dissolved: give SUBSTANCE=MOL_PER_L arguments (e.g. NaHCO3=0.002), or --example",
-            ));
-        }
-        let entries = parse_pairs(positionals)?;
-        let t = temperature_c.map(|t| args::number("--temperature-c", t)).transpose()?;
-        Self::new(Conditions::new(t, activity)?, entries)
+        let entries = composition::parse_positionals(positionals, "nothing dissolved", "NaHCO3=0.002")?;
+        Self::new(Conditions::from_flags(temperature_c, activity, None)?, entries)
     }
 }
 

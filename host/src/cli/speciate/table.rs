@@ -5,6 +5,7 @@ use std::fmt::Write;
 use super::report::SpeciateReport;
 use crate::cli::caution::CAUTION;
 use crate::cli::format::{fixed, percent, sci};
+use crate::cli::layout;
 
 const LABEL: usize = 18;
 const VALUE: usize = 12;
@@ -13,21 +14,9 @@ const VALUE: usize = 12;
 pub fn render(r: &SpeciateReport, title: Option<&str>) -> String {
     let c = r.conditions();
     let eq = &r.equilibrium;
-    let activity = match c.activity_name() {
-        "ideal" => "ideal activities (γ = 1)",
-        _ => "Davies activities",
-    };
-    let mut s = String::new();
-    let heading = format!("Speciation at {:.1} °C, {activity}", c.celsius());
-    match title {
-        Some(t) => {
-            let _ = writeln!(s, "{t}");
-            let _ = writeln!(s, "{heading}");
-        }
-        None => {
-            let _ = writeln!(s, "{heading}");
-        }
-    }
+    let activity = layout::activity(c.activity);
+    let mut s = layout::start(title);
+    let _ = writeln!(s, "Speciation at {:.1} °C, {activity}", c.celsius());
     let dissolved: Vec<String> =
         r.input.dissolved.iter().map(|d| format!("{} {} mol/L", d.substance.formula, sci(d.mol_per_l))).collect();
     let dissolved = if dissolved.is_empty() { "nothing (pure water)".to_owned() } else { dissolved.join(", ") };
@@ -61,7 +50,5 @@ pub fn render(r: &SpeciateReport, title: Option<&str>) -> String {
         let ions: Vec<String> = r.strong_ions.iter().map(|i| format!("{} {}", i.formula, sci(i.mol_per_l))).collect();
         let _ = writeln!(s, "{:<LABEL$}{} mol/L (inert)", "strong ions", ions.join(", "));
     }
-    let _ = writeln!(s);
-    let _ = writeln!(s, "{CAUTION}");
-    s
+    layout::finish(s, &[], CAUTION)
 }
