@@ -12,7 +12,7 @@
 use heapless::Vec;
 
 use crate::chem::activity::{self, Activity};
-use crate::chem::{CompositionError, Solution, SolveError};
+use crate::chem::{CompositionError, Equilibrium, Solution, SolveError};
 use crate::real::Real;
 
 /// Most ionic-strength rounds of one dose computation.
@@ -184,63 +184,124 @@ struct Core<R: Real> {
     rounds: u32,
 }
 
-fn solve_core<R: Real, const N: usize, const M: usize>(
-    influent: &Solution<R, N>,
+/// Influent at its flow, reagent (already at the influent's temperature), and the influent's own
+/// equilibrium: everything the closed form and the checks share.
+struct Mixing<'a, R: Real, const N: usize, const M: usize> {
+    influent: &'a Solution<R, N>,
     influent_flow_l_per_h: R,
-    influent_ph: R,
-    influent_ionic: R,
-    reagent: &Solution<R, M>,
-    x: R,
-) -> Result<Core<R>, DoseError> {
-    let mut ionic = influent_ionic;
-    for round in 1..=MAX_DOSE_ROUNDS {
-        let af = activity_factor(influent, ionic);
-        let gi = influent.evaluate(x, af).excess;
-        let gr = reagent.evaluate(x, af).excess;
-        let flow = if gi == R::ZERO {
-            R::ZERO
-        } else if (gi > R::ZERO) != (gr > R::ZERO) && gr != R::ZERO {
-            -influent_flow_l_per_h * gi / gr
-        } else {
-            return Err(unreachable_reason(influent, influent_ph, reagent, x));
-        };
-        let mixture = influent.mix(influent_flow_l_per_h, reagent, flow).map_err(DoseError::Composition)?;
-        let e = mixture.evaluate(x, af);
-        let settled = match influent.activity() {
-            Activity::Ideal => true,
-            Activity::Davies => (e.ionic_strength - ionic).abs() <= R::IONIC_STRENGTH_TOLERANCE * e.ionic_strength,
-        };
-        if settled {
-            let total = influent_flow_l_per_h + flow;
-            let gain = if e.beta > R::ZERO { gr / (total * e.beta) } else { R::ZERO };
-            return Ok(Core { flow, beta: e.beta, ionic: e.ionic_strength, gain, rounds: round });
-        }
-        ionic = e.ionic_strength;
-    }
-    Err(DoseError::NotConverged)
+    influent_eq: Equilibrium<R>,
+    reagent: &'a Solution<R, M>,
 }
 
-/// Which way is the setpoint unreachable? Compares the reagent's own pull at the influent's pH.
-fn unreachable_reason<R: Real, const N: usize, const M: usize>(
-    influent: &Solution<R, N>,
-    influent_ph: R,
-    reagent: &Solution<R, M>,
-    x: R,
-) -> DoseError {
-    let setpoint_ph = x.to_f64();
-    let reagent_pushes_up = reagent.evaluate(influent_ph, R::ZERO).excess > R::ZERO;
-    let setpoint_above = x > influent_ph;
-    if reagent_pushes_up != setpoint_above {
-        return DoseError::WrongDirection { influent_ph: influent_ph.to_f64(), setpoint_ph };
+impl<R: Real, const N: usize, const M: usize> Mixing<'_, R, N, M> {
+    /// The closed-form flow for setpoint `x`, refined for activity in at most
+    /// [`MAX_DOSE_ROUNDS`] rounds.
+    fn core(&self, x: R) -> Result<Core<R>, DoseError> {
+        let (influent, q_in, reagent) = (self.influent, self.influent_flow_l_per_h, self.reagent);
+        let mut ionic = self.influent_eq.ionic_strength_mol_per_l;
+        for round in 1..=MAX_DOSE_ROUNDS {
+            let af = activity_factor(influent, ionic);
+            let gi = influent.evaluate(x, af).excess;
+            let gr = reagent.evaluate(x, af).excess;
+            let flow = if gi == R::ZERO {
+                R::ZERO
+            } else if (gi > R::ZERO) != (gr > R::ZERO) && gr != R::ZERO {
+                -q_in * gi / gr
+            } else {
+                return Err(self.unreachable_reason(x));
+            };
+            let mixture = influent.mix(q_in, reagent, flow).map_err(DoseError::Composition)?;
+            let e = mixture.evaluate(x, af);
+            let settled = match influent.activity() {
+                Activity::Ideal => true,
+                Activity::Davies => (e.ionic_strength - ionic).abs() <= R::IONIC_STRENGTH_TOLERANCE * e.ionic_strength,
+            };
+            if settled {
+                let gain = if e.beta > R::ZERO { gr / ((q_in + flow) * e.beta) } else { R::ZERO };
+                return Ok(Core { flow, beta: e.beta, ionic: e.ionic_strength, gain, rounds: round });
+            }
+            ionic = e.ionic_strength;
+        }
+        Err(DoseError::NotConverged)
     }
-    let mut own = reagent.clone();
-    own.set_activity(Activity::Ideal);
-    let _ = influent; // the limit is the reagent's own pH, whatever the influent
-    match own.solve() {
-        Ok(eq) => DoseError::BeyondReagent { limit_ph: eq.ph.to_f64(), setpoint_ph },
-        Err(e) => DoseError::Solve(e),
+
+    /// Which way is the setpoint unreachable? Compares the reagent's own pull at the influent's
+    /// pH; the limit of an unlimited dose is the reagent's own pH (ideal activities).
+    fn unreachable_reason(&self, x: R) -> DoseError {
+        let setpoint_ph = x.to_f64();
+        let influent_ph = self.influent_eq.ph;
+        let reagent_pushes_up = self.reagent.evaluate(influent_ph, R::ZERO).excess > R::ZERO;
+        if reagent_pushes_up != (x > influent_ph) {
+            return DoseError::WrongDirection { influent_ph: influent_ph.to_f64(), setpoint_ph };
+        }
+        let mut own = self.reagent.clone();
+        own.set_activity(Activity::Ideal);
+        match own.solve() {
+            Ok(eq) => DoseError::BeyondReagent { limit_ph: eq.ph.to_f64(), setpoint_ph },
+            Err(e) => DoseError::Solve(e),
+        }
+    }
+
+    /// pH change when the reagent flow goes from `flow` to `flow + step` (a real solve, not
+    /// the linear gain: near neutrality in unbuffered water the two differ by orders of
+    /// magnitude).
+    fn step_delta_ph(&self, x: R, flow: R, step: R) -> Result<R, DoseError> {
+        let mix =
+            self.influent.mix(self.influent_flow_l_per_h, self.reagent, flow + step).map_err(DoseError::Composition)?;
+        let eq = mix.solve_from(x).map_err(DoseError::Solve)?;
+        Ok(eq.ph - x)
+    }
+
+    /// Smallest factor f (1–[`MAX_DILUTION`], found to 5 %) such that a step of `step/f` L/h
+    /// at the planned flow moves the pH by at most `band`: diluting the reagent f-fold (ignoring
+    /// the extra water's volume, small at these flows) gives a pump step that fits the band.
+    /// Bisection on log f: at most 30 solves.
+    fn dilution_needed(&self, x: R, flow: R, step: R, band: R) -> R {
+        let fits = |f: f64| self.step_delta_ph(x, flow, step / R::from_f64(f)).is_ok_and(|d| d.abs() <= band);
+        if !fits(MAX_DILUTION) {
+            return R::from_f64(MAX_DILUTION);
+        }
+        let (mut lo, mut hi) = (0.0_f64, libm::log10(MAX_DILUTION)); // log10 f: lo fails, hi fits
+        for _ in 0..30 {
+            if hi - lo < 0.02 {
+                break;
+            }
+            let mid = 0.5 * (lo + hi);
+            if fits(libm::pow(10.0, mid)) {
+                hi = mid;
+            } else {
+                lo = mid;
+            }
+        }
+        R::from_f64(libm::pow(10.0, hi))
+    }
+
+    /// Nearest setpoint within ±2 pH (0.1 apart, closest first) where one pump step fits the
+    /// band and the flow fits the pump. Bounded: 2·[`SETPOINT_SCAN_STEPS`] core solves.
+    fn nearest_controllable(&self, x: R, pump: Pump<R>, band: R) -> Option<R> {
+        for k in 1..=SETPOINT_SCAN_STEPS {
+            let d = R::from_f64(SETPOINT_SCAN_SPACING_PH * f64::from(k));
+            for candidate in [x - d, x + d] {
+                if candidate < R::ZERO || candidate > R::from_f64(14.0) {
+                    continue;
+                }
+                let ok = self
+                    .core(candidate)
+                    .ok()
+                    .filter(|c| c.flow <= pump.max_l_per_h)
+                    .and_then(|c| self.step_delta_ph(candidate, c.flow, pump.step_l_per_h).ok())
+                    .is_some_and(|d| d.abs() <= band);
+                if ok {
+                    return Some(candidate);
+                }
+            }
+        }
+        None
     }
 }
+
+/// Largest dilution factor [`DoseCheck::TooSteep`] reports.
+pub const MAX_DILUTION: f64 = 1e6;
 
 /// Plans the reagent flow that brings `influent` (at `influent_flow_l_per_h`) to the request's
 /// setpoint, with the process gain and the pump/band checks.
@@ -273,8 +334,9 @@ pub fn plan<R: Real, const N: usize, const M: usize>(
     }
     let mut reagent = reagent.clone();
     reagent.set_temperature(influent.temperature());
-    let inf_eq = influent.solve().map_err(DoseError::Solve)?;
-    let core = solve_core(influent, influent_flow_l_per_h, inf_eq.ph, inf_eq.ionic_strength_mol_per_l, &reagent, x)?;
+    let influent_eq = influent.solve().map_err(DoseError::Solve)?;
+    let m = Mixing { influent, influent_flow_l_per_h, influent_eq, reagent: &reagent };
+    let core = m.core(x)?;
 
     let mut checks = Vec::new();
     let mut gain_ph_per_step = None;
@@ -282,19 +344,16 @@ pub fn plan<R: Real, const N: usize, const M: usize>(
         if core.flow > pump.max_l_per_h {
             let _ = checks.push(DoseCheck::BeyondPump { needed_l_per_h: core.flow, max_l_per_h: pump.max_l_per_h });
         }
-        let step = step_delta_ph(influent, influent_flow_l_per_h, &reagent, x, core.flow, pump.step_l_per_h)?;
+        let step = m.step_delta_ph(x, core.flow, pump.step_l_per_h)?;
         gain_ph_per_step = Some(step);
         if let Some(band) = request.band_ph
             && step.abs() > band
         {
-            let nearest = scan_setpoints(influent, influent_flow_l_per_h, &inf_eq, &reagent, x, pump, band);
-            let dilute =
-                dilution_needed(influent, influent_flow_l_per_h, &reagent, x, core.flow, pump.step_l_per_h, band);
             let _ = checks.push(DoseCheck::TooSteep {
                 step_delta_ph: step.abs(),
                 band_ph: band,
-                dilute_reagent_by: dilute,
-                nearest_controllable_setpoint_ph: nearest,
+                dilute_reagent_by: m.dilution_needed(x, core.flow, pump.step_l_per_h, band),
+                nearest_controllable_setpoint_ph: m.nearest_controllable(x, pump, band),
             });
         }
     }
@@ -305,102 +364,10 @@ pub fn plan<R: Real, const N: usize, const M: usize>(
         mixture_ionic_strength_mol_per_l: core.ionic,
         gain_ph_per_l_per_h: core.gain,
         gain_ph_per_step,
-        influent_ph: inf_eq.ph,
+        influent_ph: influent_eq.ph,
         rounds: core.rounds,
         checks,
     })
-}
-
-/// pH change when the reagent flow goes from `flow` to `flow + step` (a real solve, not the
-/// linear gain: near neutrality in unbuffered water the two differ by orders of magnitude).
-fn step_delta_ph<R: Real, const N: usize, const M: usize>(
-    influent: &Solution<R, N>,
-    influent_flow_l_per_h: R,
-    reagent: &Solution<R, M>,
-    x: R,
-    flow: R,
-    step: R,
-) -> Result<R, DoseError> {
-    let mix = influent.mix(influent_flow_l_per_h, reagent, flow + step).map_err(DoseError::Composition)?;
-    let eq = mix.solve_from(x).map_err(DoseError::Solve)?;
-    Ok(eq.ph - x)
-}
-
-/// Largest dilution factor [`DoseCheck::TooSteep`] reports.
-pub const MAX_DILUTION: f64 = 1e6;
-
-/// Smallest factor f (1–[`MAX_DILUTION`], found to 5 %) such that a step of `step/f` L/h at the
-/// planned flow moves the pH by at most `band`: diluting the reagent f-fold (ignoring the extra
-/// water's volume, small at these flows) gives a pump step that fits the band. Bisection on
-/// log f: at most 30 solves.
-fn dilution_needed<R: Real, const N: usize, const M: usize>(
-    influent: &Solution<R, N>,
-    influent_flow_l_per_h: R,
-    reagent: &Solution<R, M>,
-    x: R,
-    flow: R,
-    step: R,
-    band: R,
-) -> R {
-    let fits = |f: f64| {
-        step_delta_ph(influent, influent_flow_l_per_h, reagent, x, flow, step / R::from_f64(f))
-            .is_ok_and(|d| d.abs() <= band)
-    };
-    if !fits(MAX_DILUTION) {
-        return R::from_f64(MAX_DILUTION);
-    }
-    let (mut lo, mut hi) = (0.0_f64, libm::log10(MAX_DILUTION)); // log10 f: lo fails, hi fits
-    for _ in 0..30 {
-        if hi - lo < 0.02 {
-            break;
-        }
-        let mid = 0.5 * (lo + hi);
-        if fits(libm::pow(10.0, mid)) {
-            hi = mid;
-        } else {
-            lo = mid;
-        }
-    }
-    R::from_f64(libm::pow(10.0, hi))
-}
-
-/// Nearest setpoint within ±2 pH (0.1 apart, closest first) where one pump step fits the band
-/// and the flow fits the pump. Bounded: 2·[`SETPOINT_SCAN_STEPS`] core solves.
-fn scan_setpoints<R: Real, const N: usize, const M: usize>(
-    influent: &Solution<R, N>,
-    influent_flow_l_per_h: R,
-    inf_eq: &crate::chem::Equilibrium<R>,
-    reagent: &Solution<R, M>,
-    x: R,
-    pump: Pump<R>,
-    band: R,
-) -> Option<R> {
-    for k in 1..=SETPOINT_SCAN_STEPS {
-        let d = R::from_f64(SETPOINT_SCAN_SPACING_PH * f64::from(k));
-        for candidate in [x - d, x + d] {
-            if candidate < R::ZERO || candidate > R::from_f64(14.0) {
-                continue;
-            }
-            let ok = solve_core(
-                influent,
-                influent_flow_l_per_h,
-                inf_eq.ph,
-                inf_eq.ionic_strength_mol_per_l,
-                reagent,
-                candidate,
-            )
-            .ok()
-            .filter(|c| c.flow <= pump.max_l_per_h)
-            .and_then(|c| {
-                step_delta_ph(influent, influent_flow_l_per_h, reagent, candidate, c.flow, pump.step_l_per_h).ok()
-            })
-            .is_some_and(|d| d.abs() <= band);
-            if ok {
-                return Some(candidate);
-            }
-        }
-    }
-    None
 }
 
 #[cfg(test)]
