@@ -340,3 +340,29 @@ fn help_and_substances() {
         check_speciation(&doc);
     }
 }
+
+#[test]
+fn speciate_reports_alkalinity_at_the_standard_methods_endpoints() {
+    // Make-up water of the fictional plating shop: 2 mM bicarbonate (pH ≈ 8.3) has P ≈ 0 and
+    // T ≈ 2 meq/L = 100.1 mg/L as CaCO3 (1 meq/L = 50.04 mg/L, REFERENCE-VALUES §8, calc); with
+    // 0.5 mM carbonate added, P = 0.5 meq/L = 25.0 mg/L. Within 2 %: the endpoint capacities
+    // carry small water and CO2-side terms.
+    let doc = ok_json(&["speciate", "--json"], r#"{"activity": "ideal", "dissolved": {"NaHCO3": 0.002}}"#);
+    let a = &doc["alkalinity"];
+    assert!(num(a, "phenolphthalein_mg_per_l_as_caco3") < 1.0, "{a}");
+    assert!((num(a, "total_mg_per_l_as_caco3") - 100.1).abs() < 2.0, "{a}");
+    assert_eq!(num(a, "acidity_to_ph_4_5_mg_per_l_as_caco3"), 0.0);
+    let doc =
+        ok_json(&["speciate", "--json"], r#"{"activity": "ideal", "dissolved": {"NaHCO3": 0.002, "Na2CO3": 0.0005}}"#);
+    let a = &doc["alkalinity"];
+    assert!((num(a, "phenolphthalein_mg_per_l_as_caco3") - 25.0).abs() < 0.5, "{a}");
+    assert!((num(a, "total_mg_per_l_as_caco3") - 150.1).abs() < 3.0, "{a}");
+    // Acidic water has mineral acidity to pH 4.5 instead: 1 mM HCl less the 0.03 mM H+ still free at
+    // pH 4.5 = 0.968 meq/L ≈ 48.4 mg/L as CaCO3.
+    let doc = ok_json(&["speciate", "--json"], r#"{"activity": "ideal", "dissolved": {"HCl": 0.001}}"#);
+    let a = &doc["alkalinity"];
+    assert!(
+        num(a, "total_mg_per_l_as_caco3") == 0.0 && (num(a, "acidity_to_ph_4_5_mg_per_l_as_caco3") - 48.5).abs() < 1.5,
+        "{a}"
+    );
+}

@@ -27,6 +27,15 @@ struct Output<'a> {
     activity_coefficients: Gammas,
     dissolved: Vec<DissolvedOut<'a>>,
     systems: Vec<SystemOut<'a>>,
+    alkalinity: AlkalinityOut,
+}
+
+/// SM 2320 endpoints (pH 8.3 and 4.5), mg/L as CaCO3.
+#[derive(Serialize)]
+struct AlkalinityOut {
+    phenolphthalein_mg_per_l_as_caco3: Num,
+    total_mg_per_l_as_caco3: Num,
+    acidity_to_ph_4_5_mg_per_l_as_caco3: Num,
 }
 
 #[derive(Serialize)]
@@ -89,6 +98,13 @@ pub fn render(r: &SpeciateReport) -> Result<String, CliError> {
         residual_eq_per_l: Num(eq.residual_eq_per_l),
         davies_factor: Num(eq.davies_factor),
         activity_coefficients: Gammas { z1, z2, z3 },
+        alkalinity: AlkalinityOut {
+            phenolphthalein_mg_per_l_as_caco3: Num(r.alkalinity.phenolphthalein_mg_per_l_as_caco3()),
+            total_mg_per_l_as_caco3: Num(r.alkalinity.total_mg_per_l_as_caco3()),
+            acidity_to_ph_4_5_mg_per_l_as_caco3: Num(phdose::titration::alkalinity::mg_per_l_as_caco3(
+                r.alkalinity.acidity_eq_per_l * 1000.0,
+            )),
+        },
         dissolved: r
             .input
             .dissolved

@@ -3,6 +3,7 @@
 use phdose::chem::Equilibrium;
 use phdose::chem::activity;
 use phdose::chem::substance::Part;
+use phdose::titration::alkalinity::{self, Alkalinity};
 
 use super::input::SpeciateInput;
 use crate::cli::CliError;
@@ -67,6 +68,8 @@ pub struct SpeciateReport {
     pub systems: Vec<SystemReport>,
     /// Strong ions in the order first added.
     pub strong_ions: Vec<StrongIonReport>,
+    /// Phenolphthalein and total alkalinity and mineral acidity (SM 2320 endpoints 8.3 / 4.5).
+    pub alkalinity: Alkalinity<f64>,
 }
 
 impl SpeciateReport {
@@ -82,6 +85,7 @@ pub fn compute(input: SpeciateInput) -> Result<SpeciateReport, CliError> {
     let solution: HostSolution = composition::solution(c, &input.dissolved, "")?;
     let equilibrium = solution.solve().map_err(|e| CliError::new(format!("pH solver: {e}")))?;
     let speciation = solution.speciate(&equilibrium);
+    let alkalinity = alkalinity::alkalinity(&solution).map_err(|e| CliError::new(format!("alkalinity: {e}")))?;
 
     let mut systems = Vec::with_capacity(solution.components().len());
     for (index, (component, conc)) in solution.components().iter().zip(speciation.forms_mol_per_l.iter()).enumerate() {
@@ -111,6 +115,7 @@ pub fn compute(input: SpeciateInput) -> Result<SpeciateReport, CliError> {
         gamma: [1, 2, 3].map(|z| activity::gamma(factor, z)),
         systems,
         strong_ions: strong_ions(&input),
+        alkalinity,
         equilibrium,
         input,
     })

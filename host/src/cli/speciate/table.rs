@@ -27,6 +27,22 @@ pub fn render(r: &SpeciateReport, title: Option<&str>) -> String {
     let _ = writeln!(s, "{:<LABEL$}{} mol/L", "ionic strength", sci(eq.ionic_strength_mol_per_l));
     let _ = writeln!(s, "{:<LABEL$}{} mol/L per pH unit", "buffer capacity", sci(eq.buffer_capacity_mol_per_l_per_ph));
     let _ = writeln!(s, "{:<LABEL$}{}", "pKw", fixed(r.pkw, 3));
+    let a = &r.alkalinity;
+    let _ = writeln!(
+        s,
+        "{:<LABEL$}P {} / T {} mg/L as CaCO3 (endpoints pH 8.3 / 4.5){}",
+        "alkalinity",
+        fixed(a.phenolphthalein_mg_per_l_as_caco3(), 1),
+        fixed(a.total_mg_per_l_as_caco3(), 1),
+        if a.acidity_eq_per_l > 0.0 {
+            format!(
+                "; acidity {} mg/L as CaCO3",
+                fixed(phdose::titration::alkalinity::mg_per_l_as_caco3(a.acidity_eq_per_l * 1000.0), 1)
+            )
+        } else {
+            String::new()
+        }
+    );
     let _ = writeln!(
         s,
         "{:<LABEL$}{} iterations, charge residual {} eq/L",
