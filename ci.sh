@@ -5,6 +5,7 @@
 #   ./ci.sh fmt      rustfmt check
 #   ./ci.sh clippy   clippy with -D warnings, every feature set
 #   ./ci.sh thumb    the no_std core for bare-metal targets, every feature set
+#   ./ci.sh nopanic  link-time proof (panic-never) that the controller-facing API cannot panic
 #   ./ci.sh doc      rustdoc with warnings denied
 #   ./ci.sh bench    compile the criterion benches (run them with `cargo bench`)
 #   ./ci.sh fuzz     short cargo-fuzz smoke run of every target (needs a nightly toolchain)
@@ -48,6 +49,11 @@ do_thumb() {
     done
 }
 
+do_nopanic() {
+    step "no-panic link check (thumbv7em-none-eabihf, release, LTO)"
+    bash tools/no-panic/check.sh
+}
+
 do_doc() {
     step "rustdoc"
     RUSTDOCFLAGS="-D warnings" cargo doc -p phdose --no-deps --features defmt
@@ -74,6 +80,7 @@ case "${1:-all}" in
     fmt) do_fmt ;;
     clippy) do_clippy ;;
     thumb) do_thumb ;;
+    nopanic) do_nopanic ;;
     doc) do_doc ;;
     bench) do_bench ;;
     fuzz) do_fuzz ;;
@@ -82,13 +89,14 @@ case "${1:-all}" in
         do_fmt
         do_clippy
         do_thumb
+        do_nopanic
         do_doc
         do_bench
         do_fuzz
         do_test
         ;;
     *)
-        echo "usage: $0 [all|fmt|clippy|thumb|doc|bench|fuzz|test]" >&2
+        echo "usage: $0 [all|fmt|clippy|thumb|nopanic|doc|bench|fuzz|test]" >&2
         exit 2
         ;;
 esac

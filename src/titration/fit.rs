@@ -378,59 +378,70 @@ fn point_residual<R: Real, const M: usize>(
     Ok(eq.ph - measured_ph)
 }
 
-#[allow(
-    clippy::indexing_slicing,
-    clippy::needless_range_loop,
-    reason = "every index is < k ≤ MAX_PARAMETERS, the arrays' length; the triangular loops read clearer with indices"
-)]
 /// Solves A·x = b on the active sub-block by Cholesky; `None` when A is not positive definite
 /// or a pivot is below 1e-12 of the largest diagonal (numerically singular). k ≤ 6: fixed work.
+/// Written with `get` throughout so that no bounds check can panic (the link-time check in
+/// tools/no-panic proves it).
 fn solve_spd<R: Real>(a: &Matrix<R>, b: &[R; MAX_PARAMETERS], layout: Layout) -> Option<[R; MAX_PARAMETERS]> {
-    let idx: heapless::Vec<usize, MAX_PARAMETERS> =
-        (0..MAX_PARAMETERS).filter(|i| layout.active.get(*i).copied().unwrap_or(false)).collect();
-    let k = idx.len();
-    let at = |i: usize, j: usize| -> R {
-        match (idx.get(i), idx.get(j)) {
-            (Some(&r), Some(&c)) => a.get(r).and_then(|row| row.get(c)).copied().unwrap_or(R::ZERO),
-            _ => R::ZERO,
+    // Indices of the active parameters (push, not `collect`: heapless' FromIterator panics on
+    // overflow, and the optimiser cannot see that at most MAX_PARAMETERS come).
+    let mut idx: heapless::Vec<usize, MAX_PARAMETERS> = heapless::Vec::new();
+    for (i, active) in layout.active.iter().enumerate() {
+        if *active {
+            let _ = idx.push(i);
         }
+    }
+    let k = idx.len();
+    let read = |m: &Matrix<R>, i: usize, j: usize| m.get(i).and_then(|row| row.get(j)).copied().unwrap_or(R::ZERO);
+    let at = |i: usize, j: usize| match (idx.get(i), idx.get(j)) {
+        (Some(&r), Some(&c)) => read(a, r, c),
+        _ => R::ZERO,
     };
     let max_diag = (0..k).map(|i| at(i, i)).fold(R::ZERO, |m, d| m.max(d));
     if !max_diag.is_finite() || max_diag <= R::ZERO {
         return None;
     }
-    let mut l = [[R::ZERO; MAX_PARAMETERS]; MAX_PARAMETERS];
+    // L·Lᵀ = A (lower triangle in `l`).
+    let mut l: Matrix<R> = [[R::ZERO; MAX_PARAMETERS]; MAX_PARAMETERS];
     for i in 0..k {
         for j in 0..=i {
             let mut sum = at(i, j);
             for m in 0..j {
-                sum -= l[i][m] * l[j][m];
+                sum -= read(&l, i, m) * read(&l, j, m);
             }
-            if i == j {
+            let value = if i == j {
                 if !sum.is_finite() || sum <= R::from_f64(1e-12) * max_diag {
                     return None;
                 }
-                l[i][i] = sum.sqrt();
+                sum.sqrt()
             } else {
-                l[i][j] = sum / l[j][j];
+                sum / read(&l, j, j)
+            };
+            if let Some(x) = l.get_mut(i).and_then(|row| row.get_mut(j)) {
+                *x = value;
             }
         }
     }
+    // Forward (L·y = b) and back (Lᵀ·x = y) substitution.
     let mut y = [R::ZERO; MAX_PARAMETERS];
     for i in 0..k {
         let mut sum = idx.get(i).and_then(|&r| b.get(r)).copied().unwrap_or(R::ZERO);
         for m in 0..i {
-            sum -= l[i][m] * y[m];
+            sum -= read(&l, i, m) * y.get(m).copied().unwrap_or(R::ZERO);
         }
-        y[i] = sum / l[i][i];
+        if let Some(v) = y.get_mut(i) {
+            *v = sum / read(&l, i, i);
+        }
     }
     let mut x = [R::ZERO; MAX_PARAMETERS];
     for i in (0..k).rev() {
-        let mut sum = y[i];
+        let mut sum = y.get(i).copied().unwrap_or(R::ZERO);
         for m in (i + 1)..k {
-            sum -= l[m][i] * x[m];
+            sum -= read(&l, m, i) * x.get(m).copied().unwrap_or(R::ZERO);
         }
-        x[i] = sum / l[i][i];
+        if let Some(v) = x.get_mut(i) {
+            *v = sum / read(&l, i, i);
+        }
     }
     let mut out = [R::ZERO; MAX_PARAMETERS];
     for (i, &r) in idx.iter().enumerate() {

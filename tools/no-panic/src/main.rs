@@ -1,0 +1,119 @@
+//! Link-time proof that the phdose entry points a controller calls have no reachable panic.
+//!
+//! `panic-never` turns any panic the optimiser cannot remove into a link error, so this binary
+//! only links if every call below is panic-free for *all* inputs: the inputs pass through
+//! `black_box`, so nothing is constant-folded away. Build with `bash tools/no-panic/check.sh`.
+#![no_std]
+#![no_main]
+
+use core::hint::black_box;
+
+use cortex_m_rt::entry;
+use heapless::Vec;
+#[cfg(feature = "prove")]
+use panic_never as _;
+
+/// Without `prove`: a handler that keeps the panic paths visible for `objdump` (see check.sh).
+#[cfg(not(feature = "prove"))]
+#[panic_handler]
+fn on_panic(_: &core::panic::PanicInfo<'_>) -> ! {
+    loop {
+        cortex_m::asm::udf();
+    }
+}
+use phdose::chem::salt;
+use phdose::chem::{Activity, Solution};
+use phdose::titration::alkalinity::{self, AcidPoint};
+use phdose::titration::fit::{self, Effective, FitSpec};
+use phdose::titration::{self, CurvePoint, DoseRequest, EquivalencePoint, Pump, Titration, stages};
+use phdose::Real;
+use phdose::units::Celsius;
+
+fn sink<R: Real>(x: R) {
+    black_box(x);
+}
+
+fn r<R: Real>(v: f64) -> R {
+    black_box(R::from_f64(v))
+}
+
+fn chemistry<R: Real>() -> Option<()> {
+    let t = Celsius::new(r::<R>(18.0)).ok()?;
+    let mut s: Solution<R, 8> = Solution::new(t, Activity::Davies);
+    s.add_formula(black_box("NaHCO3"), r::<R>(0.002)).ok()?;
+    s.add_formula(black_box("H2SO4"), r::<R>(0.0006)).ok()?;
+    let eq = s.solve().ok()?;
+    let again = s.solve_warm(&eq).ok()?;
+    sink(again.ph);
+    let sp = s.speciate(&eq);
+    sink(sp.h_mol_per_l);
+    s.set_temperature(Celsius::new(r::<R>(35.0)).ok()?);
+    sink(s.solve_from(r::<R>(7.0)).ok()?.ph);
+    let report = salt::analyse(black_box("Na2HPO4"), r::<R>(0.05), t, Activity::Davies).ok()?;
+    sink(report.equilibrium.ph);
+    Some(())
+}
+
+fn dosing<R: Real>() -> Option<()> {
+    let t = Celsius::new(r::<R>(18.0)).ok()?;
+    let mut influent: Solution<R, 6> = Solution::new(t, Activity::Davies);
+    influent.add_formula(black_box("NaHCO3"), r::<R>(0.001)).ok()?;
+    influent.add_formula(black_box("H2SO4"), r::<R>(0.0012)).ok()?;
+    let mut reagent: Solution<R, 1> = Solution::new(t, Activity::Davies);
+    reagent.add_formula(black_box("NaOH"), r::<R>(7.96)).ok()?;
+    let request = DoseRequest {
+        setpoint_ph: r::<R>(7.0),
+        pump: Some(Pump { max_l_per_h: r::<R>(10.0), step_l_per_h: r::<R>(0.01) }),
+        band_ph: Some(r::<R>(0.3)),
+    };
+    let p = titration::plan(&influent, r::<R>(1200.0), &reagent, &request).ok()?;
+    sink(p.reagent_flow_l_per_h);
+    let a = alkalinity::alkalinity(&influent).ok()?;
+    sink(a.total_eq_per_l);
+    let st = stages::advise(r::<R>(2.0), r::<R>(11.0), r::<R>(7.0)).ok()?;
+    sink(st.excursion_ph);
+    Some(())
+}
+
+fn titrations<R: Real>() -> Option<()> {
+    let t = Celsius::new(r::<R>(20.0)).ok()?;
+    let mut sample: Solution<R, 6> = Solution::new(t, Activity::Ideal);
+    sample.add_formula(black_box("Na2CO3"), r::<R>(0.001)).ok()?;
+    let mut acid: Solution<R, 1> = Solution::new(t, Activity::Ideal);
+    acid.add_formula(black_box("HCl"), r::<R>(0.02)).ok()?;
+    let tt = Titration { sample: &sample, sample_volume_l: r::<R>(0.1), titrant: &acid };
+    let mut curve: Vec<CurvePoint<R>, 64> = Vec::new();
+    tt.curve(r::<R>(0.02), &mut curve).ok()?;
+    let mut found: Vec<EquivalencePoint<R>, 4> = Vec::new();
+    titration::inflections(&curve, &mut found);
+    tt.model_equivalence_points(r::<R>(0.02), &mut found).ok()?;
+    let mut data: Vec<AcidPoint<R>, 64> = Vec::new();
+    for p in &curve {
+        data.push(AcidPoint { titrant_l: p.titrant_l, ph: p.ph }).ok()?;
+    }
+    sink(alkalinity::gran(&data, r::<R>(0.1), r::<R>(0.02)).ok()?.equivalence_l);
+    sink(alkalinity::fixed_endpoint_eq_per_l(&data, r::<R>(0.1), r::<R>(0.02), r::<R>(4.5)).ok()?);
+    let mut lab: Vec<(R, R), 64> = Vec::new();
+    for p in &curve {
+        lab.push((p.titrant_l, p.ph)).ok()?;
+    }
+    let spec = FitSpec { carbonate: true, buffers: black_box(1), sample_volume_l: r::<R>(0.1), temperature: t, activity: Activity::Ideal };
+    let start = Effective { strong_charge_eq_per_l: r::<R>(1e-3), carbonate_mol_per_l: r::<R>(1e-3), buffers: [(r::<R>(1e-4), r::<R>(8.0)), (r::<R>(0.0), r::<R>(7.0))] };
+    sink(fit::fit(&spec, &acid, &lab, &start).ok()?.rms_ph);
+    Some(())
+}
+
+#[entry]
+fn main() -> ! {
+    // f32 (what an MCU with a single-precision FPU runs) and f64, every layer.
+    let ok = u8::from(chemistry::<f32>().is_some())
+        + u8::from(dosing::<f32>().is_some())
+        + u8::from(titrations::<f32>().is_some())
+        + u8::from(chemistry::<f64>().is_some())
+        + u8::from(dosing::<f64>().is_some())
+        + u8::from(titrations::<f64>().is_some());
+    black_box(ok);
+    loop {
+        cortex_m::asm::nop();
+    }
+}
