@@ -23,6 +23,7 @@ THUMB_TARGETS=("thumbv7em-none-eabihf" "thumbv6m-none-eabi")
 do_fmt() {
     step "rustfmt"
     cargo fmt --all -- --check
+    (cd tools/no-panic && cargo fmt -- --check)
 }
 
 do_clippy() {

@@ -21,12 +21,12 @@ fn on_panic(_: &core::panic::PanicInfo<'_>) -> ! {
         cortex_m::asm::udf();
     }
 }
+use phdose::Real;
 use phdose::chem::salt;
 use phdose::chem::{Activity, Solution};
 use phdose::titration::alkalinity::{self, AcidPoint};
 use phdose::titration::fit::{self, Effective, FitSpec};
 use phdose::titration::{self, CurvePoint, DoseRequest, EquivalencePoint, Pump, Titration, stages};
-use phdose::Real;
 use phdose::units::Celsius;
 
 fn sink<R: Real>(x: R) {
@@ -97,8 +97,18 @@ fn titrations<R: Real>() -> Option<()> {
     for p in &curve {
         lab.push((p.titrant_l, p.ph)).ok()?;
     }
-    let spec = FitSpec { carbonate: true, buffers: black_box(1), sample_volume_l: r::<R>(0.1), temperature: t, activity: Activity::Ideal };
-    let start = Effective { strong_charge_eq_per_l: r::<R>(1e-3), carbonate_mol_per_l: r::<R>(1e-3), buffers: [(r::<R>(1e-4), r::<R>(8.0)), (r::<R>(0.0), r::<R>(7.0))] };
+    let spec = FitSpec {
+        carbonate: true,
+        buffers: black_box(1),
+        sample_volume_l: r::<R>(0.1),
+        temperature: t,
+        activity: Activity::Ideal,
+    };
+    let start = Effective {
+        strong_charge_eq_per_l: r::<R>(1e-3),
+        carbonate_mol_per_l: r::<R>(1e-3),
+        buffers: [(r::<R>(1e-4), r::<R>(8.0)), (r::<R>(0.0), r::<R>(7.0))],
+    };
     sink(fit::fit(&spec, &acid, &lab, &start).ok()?.rms_ph);
     Some(())
 }
