@@ -254,7 +254,9 @@ impl<R: Real, const N: usize> Solution<R, N> {
     }
 
     /// Solves for the pH with explicit options. Never panics; at most
-    /// [`MAX_ACTIVITY_ITERATIONS`] × [`max_ph_iterations`] charge-balance evaluations.
+    /// [`MAX_ACTIVITY_ITERATIONS`] × [`max_ph_iterations`] counted iterations (+1 for the initial
+    /// ionic-strength evaluation of a cold Davies start), plus two uncounted evaluations at the
+    /// ends of the search range when a round converges on its edge (the no-root check).
     pub fn solve_with(&self, options: SolverOptions<R>) -> Result<Equilibrium<R>, SolveError> {
         self.check_finite()?;
         let mut start = match options.warm_start_ph {
