@@ -218,11 +218,16 @@ impl<R: Real, const N: usize> Solution<R, N> {
     /// from `ionic_strength_mol_per_l` (ignored in ideal mode). Linear in the totals: the
     /// quantity the dose model mixes. Positive means the true pH is above `ph`.
     pub fn charge_excess_eq_per_l(&self, ph: R, ionic_strength_mol_per_l: R) -> R {
-        let af = match self.activity() {
+        self.evaluate(ph, self.activity_factor(ionic_strength_mol_per_l)).excess
+    }
+
+    /// The Davies factor (log10 γ(z) = −factor·z²) this solution's activity mode gives at
+    /// `ionic_strength_mol_per_l`; 0 in ideal mode.
+    pub(crate) fn activity_factor(&self, ionic_strength_mol_per_l: R) -> R {
+        match self.activity() {
             Activity::Ideal => R::ZERO,
             Activity::Davies => activity::davies_factor(self.debye_huckel_a(), ionic_strength_mol_per_l),
-        };
-        self.evaluate(ph, af).excess
+        }
     }
 
     fn check_finite(&self) -> Result<(), SolveError> {

@@ -11,7 +11,7 @@
 
 use heapless::Vec;
 
-use crate::chem::activity::{self, Activity};
+use crate::chem::activity::Activity;
 use crate::chem::{CompositionError, Equilibrium, Solution, SolveError};
 use crate::real::Real;
 
@@ -168,13 +168,6 @@ fn positive_finite<R: Real>(v: R) -> bool {
     x.is_finite() && x > 0.0
 }
 
-fn activity_factor<R: Real, const N: usize>(s: &Solution<R, N>, ionic: R) -> R {
-    match s.activity() {
-        Activity::Ideal => R::ZERO,
-        Activity::Davies => activity::davies_factor(s.debye_huckel_a(), ionic),
-    }
-}
-
 /// The core of the closed form at one setpoint; no pump or band checks.
 struct Core<R: Real> {
     flow: R,
@@ -200,7 +193,7 @@ impl<R: Real, const N: usize, const M: usize> Mixing<'_, R, N, M> {
         let (influent, q_in, reagent) = (self.influent, self.influent_flow_l_per_h, self.reagent);
         let mut ionic = self.influent_eq.ionic_strength_mol_per_l;
         for round in 1..=MAX_DOSE_ROUNDS {
-            let af = activity_factor(influent, ionic);
+            let af = influent.activity_factor(ionic);
             let gi = influent.evaluate(x, af).excess;
             let gr = reagent.evaluate(x, af).excess;
             let flow = if gi == R::ZERO {
