@@ -16,6 +16,19 @@ export CARGO_TERM_COLOR="${CARGO_TERM_COLOR:-never}"
 
 step() { printf '\n==> %s\n' "$*"; }
 
+# The bare-metal targets are named in rust-toolchain.toml, but rustup installs them only when it
+# installs the toolchain itself: on a machine that already has 1.95.0 they can be missing.
+ensure_targets() {
+    local missing=()
+    for t in "${THUMB_TARGETS[@]}"; do
+        rustup target list --installed | grep -qx "$t" || missing+=("$t")
+    done
+    if [ "${#missing[@]}" -gt 0 ]; then
+        step "rustup target add ${missing[*]}"
+        rustup target add "${missing[@]}"
+    fi
+}
+
 # Feature sets of the core crate that must each build and pass (listed explicitly).
 CORE_FEATURES=("" "fast-math" "defmt" "fast-math,defmt")
 THUMB_TARGETS=("thumbv7em-none-eabihf" "thumbv6m-none-eabi")
@@ -36,6 +49,7 @@ do_clippy() {
 }
 
 do_thumb() {
+    ensure_targets
     # The core must have no alloc: nothing may even name it.
     if grep -rnE 'extern crate alloc|alloc::' src/; then
         echo "error: the core crate must not use alloc" >&2
@@ -51,6 +65,7 @@ do_thumb() {
 }
 
 do_nopanic() {
+    ensure_targets
     step "no-panic link check (thumbv7em-none-eabihf, release, LTO)"
     bash tools/no-panic/check.sh
 }

@@ -291,7 +291,7 @@ const KHP: &[(&str, f64)] = &[("KHC8H4O4", 0.05)];
 #[test]
 fn iupac_standard_buffers_at_25c() {
     // pH(S) at 25 °C: Buck et al. 2002, Pure Appl. Chem. 74, 2169 (IUPAC recommendations; NIST
-    // values), numbers via shared REFERENCE-VALUES §3. Phosphate 0.025/0.025 mol/kg 6.865;
+    // values; the numbers read through an independent open-source transcription of the table). Phosphate 0.025/0.025 mol/kg 6.865;
     // borax 0.01 mol/kg 9.180; carbonate 0.025/0.025 mol/kg 10.012 (borax and carbonate also
     // "Two new standards for the pH scale", J. Res. NBS 73A, 37, 1969); KHP 0.05 mol/kg 4.005
     // (also Hamer, Pinching & Acree 1946, J. Res. NBS 36, 47).
@@ -314,8 +314,8 @@ fn iupac_standard_buffers_at_25c() {
 
 #[test]
 fn carbonate_buffer_follows_the_iupac_temperature_table() {
-    // 0.025/0.025 mol/kg NaHCO3/Na2CO3, pH(S) at 0–50 °C: Buck et al. 2002 (IUPAC), via shared
-    // REFERENCE-VALUES §3. Model constants: Plummer & Busenberg 1982 (catalogue CARBONATE).
+    // 0.025/0.025 mol/kg NaHCO3/Na2CO3, pH(S) at 0–50 °C: Buck et al. 2002 (IUPAC; numbers read
+    // through an independent open-source transcription of the table). Model constants: Plummer & Busenberg 1982 (catalogue CARBONATE).
     let table = [
         (0.0, 10.317),
         (5.0, 10.245),

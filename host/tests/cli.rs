@@ -344,7 +344,7 @@ fn help_and_substances() {
 #[test]
 fn speciate_reports_alkalinity_at_the_standard_methods_endpoints() {
     // Make-up water of the fictional plating shop: 2 mM bicarbonate (pH ≈ 8.3) has P ≈ 0 and
-    // T ≈ 2 meq/L = 100.1 mg/L as CaCO3 (1 meq/L = 50.04 mg/L, REFERENCE-VALUES §8, calc); with
+    // T ≈ 2 meq/L = 100.1 mg/L as CaCO3 (1 meq/L = 50.04 mg/L, calc: CaCO3 100.09 g/mol / 2); with
     // 0.5 mM carbonate added, P = 0.5 meq/L = 25.0 mg/L. Within 2 %: the endpoint capacities
     // carry small water and CO2-side terms.
     let doc = ok_json(&["speciate", "--json"], r#"{"activity": "ideal", "dissolved": {"NaHCO3": 0.002}}"#);

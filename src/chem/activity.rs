@@ -52,7 +52,7 @@ mod tests {
     #[test]
     fn debye_huckel_a_values() {
         // A = 0.5085 at 25 °C is the value widely used in speciation codes (no primary source
-        // found, see shared REFERENCE-VALUES §5): our formulation must agree within ±0.003.
+        // found for it): our formulation must agree within ±0.003.
         let a25 = debye_huckel_a(Celsius::new(25.0_f64).unwrap());
         assert!((a25 - 0.5085).abs() < 0.003, "A(25) = {a25}");
         // Temperature trend from the same formulation: A rises with T (0.4918 → 0.5959, calc).
@@ -63,7 +63,8 @@ mod tests {
 
     #[test]
     fn davies_gamma_values() {
-        // Davies (1962) with A = 0.5108 (calculated values, REFERENCE-VALUES §5):
+        // Davies (1962) with A = 0.5108 (Davies 1962, Ion Association, Butterworths; values calculated
+        // from the formula):
         // γ(z=1) = 0.902 at I = 0.01, 0.781 at I = 0.1; γ(z=2) = 0.372 at I = 0.1.
         let a = 0.5108_f64;
         assert!((gamma(davies_factor(a, 0.01), 1) - 0.902).abs() < 0.001);

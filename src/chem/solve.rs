@@ -469,7 +469,8 @@ mod tests {
         let s = ideal::<1>();
         let e = s.solve().unwrap();
         assert!((e.ph - 13.995 / 2.0).abs() < 0.002, "{}", e.ph);
-        // Water's buffer capacity at neutrality: ln10·2·1e-7 = 4.6e-7 (REFERENCE-VALUES §6, calc).
+        // Water's buffer capacity at neutrality: ln10·2·1e-7 = 4.6e-7 (calc from the definition
+        // β = ln10·([H+] + [OH-])).
         assert!((e.buffer_capacity_mol_per_l_per_ph - 4.6e-7).abs() < 0.05e-7);
     }
 

@@ -249,7 +249,7 @@ mod tests {
 
     #[test]
     fn conversions() {
-        // 1 meq/L = 50.04 mg/L as CaCO3 (REFERENCE-VALUES §8, calc from the atomic weights).
+        // 1 meq/L = 50.04 mg/L as CaCO3 (calc: CaCO3 100.09 g/mol / 2, IUPAC atomic weights).
         assert!((mg_per_l_as_caco3(1.0_f64) - 50.04).abs() < 0.01);
         assert!((meq_per_l_from_caco3(mg_per_l_as_caco3(2.5_f64)) - 2.5).abs() < 1e-12);
     }
@@ -267,8 +267,8 @@ mod tests {
 
     #[test]
     fn phenolphthalein_and_total_follow_the_standard_methods_table() {
-        // SM 2320 B alkalinity relationships (REFERENCE-VALUES §8, checked in public
-        // reproductions of the SM table): P = 0 → bicarbonate only; 2P < T → carbonate = 2P,
+        // SM 2320 B alkalinity relationships (Standard Methods for the Examination
+        // of Water and Wastewater, 2320 B, table of alkalinity relationships): P = 0 → bicarbonate only; 2P < T → carbonate = 2P,
         // bicarbonate = T − 2P; 2P > T → hydroxide = 2P − T, carbonate = 2(T − P). The model's
         // endpoint capacities include the small water and CO2-side terms, so within 3 %.
         let water = |recipe: &[(&str, f64)]| {

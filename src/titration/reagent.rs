@@ -118,8 +118,8 @@ mod tests {
     #[test]
     fn molarity_of_common_grades() {
         // 50 % NaOH at 1.5253 kg/L → 19.07 mol/L; 25 % at 1.274 → 7.96 mol/L; 32 % HCl at 1.159
-        // → 10.17 mol/L; 36 % at 1.179 → 11.64 mol/L (REFERENCE-VALUES §7, calc from the
-        // checked densities).
+        // → 10.17 mol/L; 36 % at 1.179 → 11.64 mol/L (calc: c = w·ρ/M with
+        // the densities and sources of COMMON_GRADES above).
         for (f, w, d, expect) in [
             ("NaOH", 50.0, 1.5253, 19.07),
             ("NaOH", 25.0, 1.274, 7.96),
