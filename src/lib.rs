@@ -26,6 +26,7 @@
 //! - [`units`]: checked unit newtypes.
 //! - [`chem`]: water, acid–base systems, catalogue, substances, solution, solver, salt hydrolysis.
 //! - [`titration`]: streams, reagents, dose for a setpoint, process gain, boot checks.
+//! - [`control`]: the per-tick control law: feed-forward, flow-mapped PI, adaptation, residual.
 //!
 //! MSRV: Rust 1.95.
 #![no_std]
@@ -38,6 +39,7 @@
 extern crate std;
 
 pub mod chem;
+pub mod control;
 pub mod real;
 pub mod titration;
 pub mod units;

@@ -1,0 +1,16 @@
+//! The controller that runs every tick, above [`crate::titration`].
+//!
+//! The control law: the chemistry it runs on and the cached feed-forward ([`feedforward`]), the
+//! flow-mapped PI trim ([`feedback`]), the tank model with adaptation and model residual
+//! ([`adapt`]), and one tick of all of them with the split range between caustic and acid
+//! ([`regulator`]).
+
+pub mod adapt;
+pub mod feedback;
+pub mod feedforward;
+pub mod regulator;
+
+/// `true` when `x` is a number above zero (false for NaN): `!positive(x)` rejects NaN too.
+pub(crate) fn positive<R: crate::real::Real>(x: R) -> bool {
+    x > R::ZERO
+}
