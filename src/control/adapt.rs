@@ -12,13 +12,17 @@
 //! raw value is clamped to ±bound, low-pass filtered with a configured time constant, and
 //! frozen (not updated) whenever its inputs are not trustworthy.
 //!
-//! **Residual.** The model's pH for the tank (one warm solve) against the measured pH. The
-//! residual is measured against the *adapted* model, so a disturbance that adaptation can
-//! explain within its bound fades as the estimate converges; a residual that stays beyond its
-//! bound for the configured time is what adaptation cannot explain — a drifting or fouled
-//! probe, an influent unlike the configured one, a pump delivering less than it reports. It
-//! raises a warning with the numbers and freezes adaptation until the residual comes back
-//! inside half its bound (or a reset).
+//! **Residual.** The model's pH for the tank (one warm solve) with the raw estimate clamped to
+//! its bound, against the measured pH. While the raw estimate is inside the bound the model
+//! explains the measurement by construction and the residual is near zero (only the activity
+//! coefficients differ); the residual is what the model cannot explain with a correction
+//! within its bound — an influent unlike the configured one, a probe far off, a pump delivering
+//! much less than it reports. A residual beyond its bound for the configured time raises a
+//! warning with the numbers and freezes adaptation until the residual comes back inside half
+//! its bound (or a reset). A probe error whose dose equivalent lies within the bound is
+//! absorbed by adaptation and *not* detected here — on a steep curve that can be several pH
+//! (measured: a single probe reading 4 pH high on the plating-rinse test water was absorbed with
+//! a ±50 % bound). That is what redundant probes and the hard pH limits are for.
 
 use super::positive;
 use crate::real::Real;

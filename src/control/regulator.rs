@@ -97,7 +97,8 @@ pub struct RegulatorOutput<R: Real> {
     pub scheduled_gain_l_per_h_per_ph: R,
     /// Model's process gain at the setpoint, pH per L/h.
     pub process_gain_ph_per_l_per_h: R,
-    /// The modelled tank pH for the doses delivered (None when the model failed).
+    /// The modelled tank pH for the doses delivered, with the adaptation estimate clamped to its
+    /// bound (None when the model failed).
     pub model_ph: Option<R>,
     /// Measured minus modelled pH.
     pub residual_ph: Option<R>,
@@ -363,8 +364,28 @@ impl<R: Real, const N: usize> Regulator<R, N> {
             _ => self.pi.track(&self.settings.pi, ff_flow, error_q, R::ZERO),
         }
 
-        // Model residual (one warm solve) and adaptation (two evaluations per reagent).
-        let tank = tank_equilibrium(&self.adapted, &self.reagents, self.adaptation.fractions(), self.tank.as_ref());
+        // Adaptation's raw estimate (two evaluations per reagent, no solve), then the model
+        // residual: the tank model with that estimate clamped to its bound (one warm solve).
+        let c_ff = self.ff.as_ref().map_or(R::ZERO, |f| f.correction_eq_per_l);
+        let raw = if ph_ok {
+            let g_in = self.adapted.charge_excess_eq_per_l(inputs.ph, ionic) - c_ff;
+            let mut g_r = [R::ZERO; 2];
+            for (g, slot) in g_r.iter_mut().zip(&self.reagents) {
+                if let Some(r) = slot {
+                    let mut rs = r.solution.clone();
+                    rs.set_temperature(inputs.temperature);
+                    *g = rs.charge_excess_eq_per_l(inputs.ph, ionic);
+                }
+            }
+            self.adaptation.raw_correction(g_in, g_r)
+        } else {
+            None
+        };
+        let bound = self.correction_bound_eq_per_l;
+        let explained = raw.map_or(self.adaptation.correction_eq_per_l(), |r| r.max(-bound).min(bound));
+        let tank = adapted_influent(&self.influent, inputs.temperature, explained)
+            .map_err(ModelError::Composition)
+            .and_then(|inf| tank_equilibrium(&inf, &self.reagents, self.adaptation.fractions(), self.tank.as_ref()));
         let (model_ph, residual, warning) = match tank {
             Ok(eq) => {
                 let r = inputs.ph - eq.ph;
@@ -378,22 +399,8 @@ impl<R: Real, const N: usize> Regulator<R, N> {
                 (None, None, None)
             }
         };
-        let mut adapted = false;
-        if ph_ok {
-            let c_ff = self.ff.as_ref().map_or(R::ZERO, |f| f.correction_eq_per_l);
-            let g_in = self.adapted.charge_excess_eq_per_l(inputs.ph, ionic) - c_ff;
-            let mut g_r = [R::ZERO; 2];
-            for (g, slot) in g_r.iter_mut().zip(&self.reagents) {
-                if let Some(r) = slot {
-                    let mut rs = r.solution.clone();
-                    rs.set_temperature(inputs.temperature);
-                    *g = rs.charge_excess_eq_per_l(inputs.ph, ionic);
-                }
-            }
-            let raw = self.adaptation.raw_correction(g_in, g_r);
-            let ok = trusted && auto && !saturated && model_error.is_none();
-            adapted = self.adaptation.update(&self.settings.adapt, dt, raw, self.correction_bound_eq_per_l, ok);
-        }
+        let ok = trusted && auto && !saturated && model_error.is_none();
+        let adapted = self.adaptation.update(&self.settings.adapt, dt, raw, bound, ok);
 
         RegulatorOutput {
             demand_l_per_h: demand,
