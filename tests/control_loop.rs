@@ -3,6 +3,7 @@
 //! influent that may differ from the configured one. Scenario of our own: the rinse-water tank
 //! of a fictional plating shop (bicarbonate water with sulfuric-acid carry-over and a little
 //! phosphate, neutralised with 25 % caustic).
+#![allow(clippy::unwrap_used, clippy::expect_used, clippy::indexing_slicing, clippy::panic)]
 
 use phdose::chem::{Activity, Solution};
 use phdose::control::adapt::AdaptSettings;
@@ -200,8 +201,8 @@ fn recovery_time(setpoint_ph: f64) -> f64 {
 fn scheduled_gain_keeps_the_response_at_two_buffer_capacities() {
     // pH 6.5 sits on the carbonate buffer; pH 8.6 is far less buffered.
     let buffered = water(0.0015, 0.0022, Activity::Ideal);
-    let beta = |ph: f64| {
-        let q = Regulator::new(
+    let gain = |ph: f64| {
+        Regulator::new(
             settings(ph, 0.0),
             buffered.clone(),
             Some(Reagent { solution: caustic(Activity::Ideal), max_l_per_h: 3.0 }),
@@ -211,10 +212,9 @@ fn scheduled_gain_keeps_the_response_at_two_buffer_capacities() {
         .unwrap()
         .feed_forward()
         .unwrap()
-        .gain_ph_per_l_per_h;
-        q
+        .gain_ph_per_l_per_h
     };
-    let (g1, g2) = (beta(6.5), beta(8.6));
+    let (g1, g2) = (gain(6.5), gain(8.6));
     println!("process gain {g1:.3} pH per L/h at 6.5, {g2:.3} at 8.6");
     assert!(g2 > 2.0 * g1, "the two operating points must differ in gain: {g1} vs {g2}");
     let (t1, t2) = (recovery_time(6.5), recovery_time(8.6));
