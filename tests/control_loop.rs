@@ -302,3 +302,12 @@ fn a_pump_that_delivers_nothing_raises_the_residual_warning() {
     // Adaptation never left its bound.
     assert!(reg.adaptation().correction_eq_per_l().abs() <= reg.correction_bound_eq_per_l());
 }
+
+#[test]
+fn regulator_state_size() {
+    // Reported in README ("Memory and bounds"); the f32 board build with a six-system influent.
+    let n32 = core::mem::size_of::<Regulator<f32, 6>>();
+    let n64 = core::mem::size_of::<Regulator<f64, 6>>();
+    println!("size_of Regulator<f32, 6> = {n32} B, Regulator<f64, 6> = {n64} B");
+    assert!(n32 < n64);
+}

@@ -7,7 +7,7 @@ use super::substance::{self, Part, Substance, UnknownSubstance};
 use super::system::{AcidBaseSystem, MAX_STEPS, SystemError};
 use super::water;
 use crate::real::Real;
-use crate::units::{Celsius, TemperatureOutOfRange};
+use crate::units::{Celsius, MAX_CELSIUS, MIN_CELSIUS, TemperatureOutOfRange};
 
 /// Largest total (mol/L) or strong-ion amount (eq/L) a solution accepts. Above it the
 /// dilute-solution chemistry here means nothing (and the solver's pH bracket may not hold).
@@ -265,7 +265,10 @@ impl<R: Real, const N: usize> Solution<R, N> {
         }
         let total = flow_self_l_per_h + flow_other_l_per_h;
         let (wa, wb) = (flow_self_l_per_h / total, flow_other_l_per_h / total);
-        let t = Celsius::new(self.temperature.celsius() * wa + other.temperature.celsius() * wb)?;
+        // A flow-weighted mean of two valid temperatures is valid; clamping removes only the
+        // rounding of the mean (two 100 °C streams can average to 100.00000000000001).
+        let mean = self.temperature.celsius() * wa + other.temperature.celsius() * wb;
+        let t = Celsius::new(mean.max(R::from_f64(MIN_CELSIUS)).min(R::from_f64(MAX_CELSIUS)))?;
         let mut out = Self::new(t, self.activity);
         for c in &self.components {
             out.add_system(&c.system, c.total_mol_per_l * wa)?;
@@ -356,5 +359,28 @@ mod tests {
         assert!(s.pkw() < 13.6);
         assert_eq!(s.component_pka(0, 2), None);
         assert_eq!(s.component_pka(5, 1), None);
+    }
+
+    fn mixes_at_100_c<R: Real>() {
+        // Issue reproduction: 2 mM NaHCO3 at 100 °C with 1 M NaOH at 100 °C, flows 0.01–10 L/h.
+        let t = Celsius::new(R::from_f64(100.0)).unwrap();
+        let mut water: Solution<R, 4> = Solution::new(t, Activity::Ideal);
+        water.add_formula("NaHCO3", R::from_f64(0.002)).unwrap();
+        let mut caustic: Solution<R, 4> = Solution::new(t, Activity::Ideal);
+        caustic.add_formula("NaOH", R::from_f64(1.0)).unwrap();
+        for k in 0..=1000 {
+            let flow = 0.01 * 1000f64.powf(f64::from(k) / 1000.0);
+            let m = water.mix(R::from_f64(100.0), &caustic, R::from_f64(flow));
+            assert!(m.is_ok(), "{} at {flow} L/h: {m:?}", R::NAME);
+            assert!(m.unwrap().temperature().celsius().to_f64() <= 100.0);
+        }
+        // Two 100 °C streams of the same water.
+        assert!(water.mix(R::from_f64(0.3), &water, R::from_f64(0.7)).is_ok());
+    }
+
+    #[test]
+    fn mixing_streams_at_the_top_of_the_range_stays_in_range() {
+        mixes_at_100_c::<f64>();
+        mixes_at_100_c::<f32>();
     }
 }

@@ -24,6 +24,10 @@ fn on_panic(_: &core::panic::PanicInfo<'_>) -> ! {
 use phdose::Real;
 use phdose::chem::salt;
 use phdose::chem::{Activity, Solution};
+use phdose::control::adapt::AdaptSettings;
+use phdose::control::feedback::PiTuning;
+use phdose::control::feedforward::{DeadBands, Reagent};
+use phdose::control::regulator::{Regulator, RegulatorInputs, RegulatorMode, RegulatorSettings};
 use phdose::titration::alkalinity::{self, AcidPoint};
 use phdose::titration::fit::{self, Effective, FitSpec};
 use phdose::titration::{self, CurvePoint, DoseRequest, EquivalencePoint, Pump, Titration, stages};
@@ -113,6 +117,49 @@ fn titrations<R: Real>() -> Option<()> {
     Some(())
 }
 
+fn control_law<R: Real>() -> Option<()> {
+    let t = Celsius::new(r::<R>(14.0)).ok()?;
+    let mut influent: Solution<R, 6> = Solution::new(t, Activity::Ideal);
+    influent.add_formula(black_box("NaHCO3"), r::<R>(0.0015)).ok()?;
+    influent.add_formula(black_box("H2SO4"), r::<R>(0.0022)).ok()?;
+    let mut caustic = Solution::new(t, Activity::Ideal);
+    caustic.add_formula(black_box("NaOH"), r::<R>(7.96)).ok()?;
+    let settings = RegulatorSettings {
+        setpoint_ph: r::<R>(7.5),
+        pi: PiTuning {
+            integral_time_s: r::<R>(765.0),
+            closed_loop_time_constant_s: r::<R>(300.0),
+            rate_limit_l_per_h_per_s: r::<R>(0.05),
+        },
+        dead_bands: DeadBands {
+            flow_fraction: r::<R>(0.02),
+            temperature_c: r::<R>(0.5),
+            correction_fraction: r::<R>(0.02),
+        },
+        adapt: AdaptSettings {
+            tank_volume_l: r::<R>(250.0),
+            filter_time_s: r::<R>(2250.0),
+            bound_fraction: r::<R>(0.5),
+            residual_bound_ph: r::<R>(0.5),
+            residual_time_s: r::<R>(1200.0),
+        },
+        switch_dead_band_ph: r::<R>(0.3),
+    };
+    let reagent = Reagent { solution: caustic, max_l_per_h: r::<R>(3.0) };
+    let mut reg = Regulator::new(settings, influent, Some(reagent), None, r::<R>(1200.0)).ok()?;
+    let out = reg.step(&RegulatorInputs {
+        dt_s: r::<R>(5.0),
+        ph: r::<R>(6.9),
+        temperature: t,
+        influent_flow_l_per_h: r::<R>(1250.0),
+        delivered_l_per_h: [r::<R>(0.6), r::<R>(0.0)],
+        ph_trusted: black_box(true),
+        mode: black_box(RegulatorMode::Auto),
+    });
+    sink(out.demand_l_per_h[0]);
+    Some(())
+}
+
 #[entry]
 fn main() -> ! {
     // f32 (what an MCU with a single-precision FPU runs) and f64, every layer.
@@ -121,7 +168,9 @@ fn main() -> ! {
         + u8::from(titrations::<f32>().is_some())
         + u8::from(chemistry::<f64>().is_some())
         + u8::from(dosing::<f64>().is_some())
-        + u8::from(titrations::<f64>().is_some());
+        + u8::from(titrations::<f64>().is_some())
+        + u8::from(control_law::<f32>().is_some())
+        + u8::from(control_law::<f64>().is_some());
     black_box(ok);
     loop {
         cortex_m::asm::nop();
