@@ -82,6 +82,19 @@ impl Plant {
     }
 }
 
+/// The inputs of one tick at 1200 L/h (or `flow`), with a trusted probe.
+fn tick(ph: f64, flow: f64, delivered: [f64; 2], mode: RegulatorMode<f64>) -> RegulatorInputs<f64> {
+    RegulatorInputs {
+        dt_s: TICK_S,
+        ph,
+        temperature: Celsius::new(T_C).unwrap(),
+        influent_flow_l_per_h: flow,
+        delivered_l_per_h: delivered,
+        ph_trusted: true,
+        mode,
+    }
+}
+
 struct Run {
     ph: Vec<f64>,
     out: Vec<RegulatorOutput<f64>>,
@@ -93,15 +106,7 @@ fn run(reg: &mut Regulator<f64, 6>, plant: &mut Plant, ticks: usize, flow_at: im
     let mut r = Run { ph: Vec::new(), out: Vec::new() };
     for k in 0..ticks {
         let flow = flow_at(k);
-        let out = reg.step(&RegulatorInputs {
-            dt_s: TICK_S,
-            ph: plant.probe_ph,
-            temperature: Celsius::new(T_C).unwrap(),
-            influent_flow_l_per_h: flow,
-            delivered_l_per_h: delivered,
-            ph_trusted: true,
-            mode: RegulatorMode::Auto,
-        });
+        let out = reg.step(&tick(plant.probe_ph, flow, delivered, RegulatorMode::Auto));
         delivered = out.demand_l_per_h;
         let ph = plant.advance(flow, delivered[0]);
         r.ph.push(ph);
@@ -233,15 +238,7 @@ fn manual_to_auto_is_bumpless_and_stopped_outputs_nothing() {
         } else {
             RegulatorMode::Auto
         };
-        let out = reg.step(&RegulatorInputs {
-            dt_s: TICK_S,
-            ph: plant.probe_ph,
-            temperature: Celsius::new(T_C).unwrap(),
-            influent_flow_l_per_h: 1200.0,
-            delivered_l_per_h: delivered,
-            ph_trusted: true,
-            mode,
-        });
+        let out = reg.step(&tick(plant.probe_ph, 1200.0, delivered, mode));
         if k == ticks(1800.0) {
             assert!(
                 (out.demand_l_per_h[0] - last).abs() <= 0.05 * TICK_S + 1e-12,
@@ -254,15 +251,7 @@ fn manual_to_auto_is_bumpless_and_stopped_outputs_nothing() {
         delivered = out.demand_l_per_h;
         plant.advance(1200.0, delivered[0]);
     }
-    let stopped = reg.step(&RegulatorInputs {
-        dt_s: TICK_S,
-        ph: plant.probe_ph,
-        temperature: Celsius::new(T_C).unwrap(),
-        influent_flow_l_per_h: 1200.0,
-        delivered_l_per_h: delivered,
-        ph_trusted: true,
-        mode: RegulatorMode::Stopped,
-    });
+    let stopped = reg.step(&tick(plant.probe_ph, 1200.0, delivered, RegulatorMode::Stopped));
     assert_eq!(stopped.demand_l_per_h, [0.0, 0.0]);
 }
 
@@ -277,15 +266,7 @@ fn a_pump_that_delivers_nothing_raises_the_residual_warning() {
     let mut delivered = [0.0; 2];
     let mut first_warning = None;
     for k in 0..ticks(3600.0) {
-        let out = reg.step(&RegulatorInputs {
-            dt_s: TICK_S,
-            ph: plant.probe_ph,
-            temperature: Celsius::new(T_C).unwrap(),
-            influent_flow_l_per_h: 1200.0,
-            delivered_l_per_h: delivered,
-            ph_trusted: true,
-            mode: RegulatorMode::Auto,
-        });
+        let out = reg.step(&tick(plant.probe_ph, 1200.0, delivered, RegulatorMode::Auto));
         if first_warning.is_none()
             && let Some(w) = out.residual_warning
         {

@@ -180,14 +180,17 @@ impl<R: Real> FeedForward<R> {
 }
 
 /// The steady-state reagent flow (L/h) that would hold the tank at `ph`: the titration curve
-/// read backwards, `Q*(x) = −Q_in·G(x)/g_r(x)`, with activity coefficients at
+/// read backwards, `Q*(x) = −Q_in·G(x)/g_r(x)` with `G = g_in + correction_eq_per_l` (the charge
+/// excess is linear in the strong ions, so the correction adds to it), activity coefficients at
 /// `ionic_strength_mol_per_l`. Two charge-balance evaluations.
 ///
 /// Where the reagent can no longer pull towards `ph` (`ph` at or beyond the reagent's own pH,
 /// `g_r` of the wrong sign or vanishing), the flow is unbounded: `saturation_l_per_h` is
 /// returned instead. The result is clamped to ±`saturation_l_per_h`.
+#[allow(clippy::too_many_arguments, reason = "the closed form's eight inputs, each a plain value")]
 pub fn steady_flow_l_per_h<R: Real, const N: usize>(
-    adapted: &Solution<R, N>,
+    influent: &Solution<R, N>,
+    correction_eq_per_l: R,
     influent_flow_l_per_h: R,
     reagent: &Solution<R, REAGENT_CAPACITY>,
     side: ReagentSide,
@@ -195,7 +198,7 @@ pub fn steady_flow_l_per_h<R: Real, const N: usize>(
     ionic_strength_mol_per_l: R,
     saturation_l_per_h: R,
 ) -> R {
-    let g_in = adapted.charge_excess_eq_per_l(ph, ionic_strength_mol_per_l);
+    let g_in = influent.charge_excess_eq_per_l(ph, ionic_strength_mol_per_l) + correction_eq_per_l;
     let g_r = reagent.charge_excess_eq_per_l(ph, ionic_strength_mol_per_l);
     // Caustic pulls the pH up: its excess is positive below its own pH; acid the reverse.
     let pulls = match side {
@@ -268,6 +271,7 @@ mod tests {
         let ff = compute(&inf, 1000.0, &r, 7.0, 0.0).unwrap();
         let q = steady_flow_l_per_h(
             &inf,
+            0.0,
             1000.0,
             &r.solution,
             ReagentSide::Caustic,
@@ -287,7 +291,7 @@ mod tests {
     fn steady_flow_rises_with_ph_and_saturates_beyond_the_reagent() {
         let inf = rinse();
         let r = caustic();
-        let f = |ph| steady_flow_l_per_h(&inf, 1000.0, &r.solution, ReagentSide::Caustic, ph, 0.0, 50.0);
+        let f = |ph| steady_flow_l_per_h(&inf, 0.0, 1000.0, &r.solution, ReagentSide::Caustic, ph, 0.0, 50.0);
         assert!(f(5.0) < f(7.0) && f(7.0) < f(9.0));
         assert_eq!(f(14.5), 50.0);
         // Below the influent's own pH the flow is negative (the tank would need acid).

@@ -180,7 +180,6 @@ pub struct Regulator<R: Real, const N: usize> {
     influent: Solution<R, N>,
     reagents: [Option<Reagent<R>>; 2],
     active: ReagentSide,
-    adapted: Solution<R, N>,
     ff: Option<FeedForward<R>>,
     pi: Pi<R>,
     adaptation: Adaptation<R>,
@@ -217,7 +216,6 @@ impl<R: Real, const N: usize> Regulator<R, N> {
         let bound = (settings.adapt.bound_fraction * g_in.abs()).max(R::from_f64(MIN_CORRECTION_BOUND_EQ_PER_L));
         let mut reg = Self {
             settings,
-            adapted: influent.clone(),
             influent,
             reagents,
             active,
@@ -270,6 +268,12 @@ impl<R: Real, const N: usize> Regulator<R, N> {
     /// moving the correction's share of the change out of the integrator.
     fn recompute(&mut self, flow: R, temperature: Celsius<R>) -> Result<(), ModelError> {
         let c = self.adaptation.correction_eq_per_l();
+        // The configured influent and the reagents follow the temperature the feed-forward is
+        // computed at; their compositions never change.
+        self.influent.set_temperature(temperature);
+        for r in self.reagents.iter_mut().flatten() {
+            r.solution.set_temperature(temperature);
+        }
         let reagent = self.reagent(self.active).ok_or(ModelError::NoReagent)?;
         let adapted = adapted_influent(&self.influent, temperature, c).map_err(ModelError::Composition)?;
         let ff = compute(&adapted, flow, reagent, self.settings.setpoint_ph, c)?;
@@ -280,7 +284,6 @@ impl<R: Real, const N: usize> Regulator<R, N> {
                 self.pi.transfer_to_feed_forward(-flow * (c - old.correction_eq_per_l) / g);
             }
         }
-        self.adapted = adapted;
         self.ff = Some(ff);
         Ok(())
     }
@@ -312,6 +315,7 @@ impl<R: Real, const N: usize> Regulator<R, N> {
                 Err(e) => model_error = Some(e),
             }
         }
+        let c_ff = self.ff.as_ref().map_or(R::ZERO, |f| f.correction_eq_per_l);
         let (ff_flow, gain, ionic) = match &self.ff {
             Some(ff) if flow > R::ZERO => {
                 // Between recomputes the feed-forward follows the flow proportionally (the
@@ -329,7 +333,8 @@ impl<R: Real, const N: usize> Regulator<R, N> {
         let saturation = max * R::from_f64(2.0);
         let (error_q, error_ph) = match self.reagent(side) {
             Some(r) if ph_ok && flow > R::ZERO => {
-                let q_meas = steady_flow_l_per_h(&self.adapted, flow, &r.solution, side, inputs.ph, ionic, saturation);
+                let q_meas =
+                    steady_flow_l_per_h(&self.influent, c_ff, flow, &r.solution, side, inputs.ph, ionic, saturation);
                 (ff_flow - q_meas, self.settings.setpoint_ph - inputs.ph)
             }
             _ => (R::ZERO, R::ZERO),
@@ -366,15 +371,12 @@ impl<R: Real, const N: usize> Regulator<R, N> {
 
         // Adaptation's raw estimate (two evaluations per reagent, no solve), then the model
         // residual: the tank model with that estimate clamped to its bound (one warm solve).
-        let c_ff = self.ff.as_ref().map_or(R::ZERO, |f| f.correction_eq_per_l);
         let raw = if ph_ok {
-            let g_in = self.adapted.charge_excess_eq_per_l(inputs.ph, ionic) - c_ff;
+            let g_in = self.influent.charge_excess_eq_per_l(inputs.ph, ionic);
             let mut g_r = [R::ZERO; 2];
             for (g, slot) in g_r.iter_mut().zip(&self.reagents) {
                 if let Some(r) = slot {
-                    let mut rs = r.solution.clone();
-                    rs.set_temperature(inputs.temperature);
-                    *g = rs.charge_excess_eq_per_l(inputs.ph, ionic);
+                    *g = r.solution.charge_excess_eq_per_l(inputs.ph, ionic);
                 }
             }
             self.adaptation.raw_correction(g_in, g_r)
