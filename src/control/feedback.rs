@@ -11,7 +11,7 @@
 //! [`PiOutput::scheduled_gain_l_per_h_per_ph`].
 //!
 //! Tuning rule: IMC for a first-order process of unit gain (Rivera, Morari & Skogestad 1986,
-//! Ind. Eng. Chem. Process Des. Dev. 25, 252): integral time `Ti` ≈ the tank's residence time
+//! Ind. Eng. Chem. Process Des. Dev. 25, 252; volume and page from memory): integral time `Ti` ≈ the tank's residence time
 //! plus its dead time, proportional gain `Kc = Ti/λ` for a desired closed-loop time constant λ.
 //!
 //! Anti-windup by conditional integration: the integrator does not move in a direction the
