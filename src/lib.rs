@@ -40,6 +40,7 @@ extern crate std;
 
 pub mod chem;
 pub mod control;
+mod invariant;
 pub mod real;
 pub mod titration;
 pub mod units;

@@ -18,6 +18,7 @@
 use super::activity::{self, Activity, DAVIES_MAX_IONIC_STRENGTH};
 use super::solution::{Component, Solution};
 use super::system::MAX_STEPS;
+use crate::invariant::at;
 use crate::real::Real;
 
 /// Lowest pH the solver searches.
@@ -158,7 +159,7 @@ pub(crate) fn alphas<R: Real>(c: &Component<R>, ph: R, af: R) -> [R; MAX_STEPS +
         // log([A_j]/[A_{j−1}]) = pH − pK_j + log γ(z_{j−1}) − log γ(z_j), with z_j = z_{j−1} − 1:
         // the γ terms give −af·(2·z_{j−1} − 1).
         let z_prev = c.system.charge_of_form(j - 1);
-        let pk = c.pk.get(j - 1).copied().unwrap_or(R::ZERO);
+        let pk = at(&c.pk, j - 1);
         acc += ph - pk - af * R::from_i32(2 * z_prev - 1);
         if let Some(l) = logs.get_mut(j) {
             *l = acc;
