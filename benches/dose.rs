@@ -12,8 +12,8 @@ use criterion::{Criterion, criterion_group, criterion_main};
 use heapless::Vec;
 use phdose::Real;
 use phdose::chem::{Activity, Solution};
-use phdose::titration::{CurvePoint, DoseRequest, Pump, Titration, plan};
-use phdose::units::Celsius;
+use phdose::titration::{CurvePoint, DoseRequest, Titration, plan};
+use phdose::units::{Celsius, LitresPerHour, Ph};
 
 fn influent<R: Real>() -> Solution<R, 6> {
     let mut s = Solution::new(Celsius::new(R::from_f64(18.0)).unwrap(), Activity::Davies);
@@ -32,13 +32,11 @@ fn caustic<R: Real>() -> Solution<R, 1> {
 fn bench_real<R: Real>(c: &mut Criterion, real: &str) {
     let inf = influent::<R>();
     let reagent = caustic::<R>();
-    let flow = R::from_f64(1200.0);
-    let bare = DoseRequest { setpoint_ph: R::from_f64(7.0), pump: None, band_ph: None };
-    let checked = DoseRequest {
-        setpoint_ph: R::from_f64(7.0),
-        pump: Some(Pump { max_l_per_h: R::from_f64(10.0), step_l_per_h: R::from_f64(0.001) }),
-        band_ph: Some(R::from_f64(0.3)),
-    };
+    let flow = LitresPerHour::new(R::from_f64(1200.0)).unwrap();
+    let bare = DoseRequest::new(Ph::new(R::from_f64(7.0)).unwrap());
+    let checked =
+        DoseRequest::checked(R::from_f64(7.0), Some((R::from_f64(10.0), R::from_f64(0.001))), Some(R::from_f64(0.3)))
+            .unwrap();
     // The checked request must pass its checks, or the bench would time the setpoint scan.
     assert!(plan(&inf, flow, &reagent, &checked).unwrap().all_clear());
     let mut g = c.benchmark_group(format!("dose/{real}"));

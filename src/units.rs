@@ -60,6 +60,131 @@ impl<R: Real> Celsius<R> {
     }
 }
 
+/// Highest flow accepted anywhere, L/h (a sanity bound: 10⁷ L/h = 10 000 m³/h).
+pub const MAX_FLOW_L_PER_H: f64 = 1e7;
+/// Lowest and highest pH a setpoint or a pH input may have.
+pub const PH_SCALE: (f64, f64) = (0.0, 14.0);
+
+/// Which checked input was out of range (with [`InvalidInput`]).
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+#[non_exhaustive]
+pub enum Quantity {
+    /// A pH (setpoint or measurement): 0–14.
+    Ph,
+    /// A flow, L/h: 0–[`MAX_FLOW_L_PER_H`].
+    Flow,
+    /// An influent flow to plan for, L/h: above 0, up to [`MAX_FLOW_L_PER_H`].
+    InfluentFlow,
+    /// A pump's maximum flow, L/h: above 0, up to [`MAX_FLOW_L_PER_H`].
+    PumpMax,
+    /// A pump's step (resolution), L/h: above 0, up to the pump's maximum.
+    PumpStep,
+    /// A width on the pH scale (a control band), pH: above 0, up to 14.
+    PhWidth,
+}
+
+impl Quantity {
+    /// What it is, the valid range and the unit, for messages.
+    pub const fn describe(self) -> (&'static str, &'static str) {
+        match self {
+            Self::Ph => ("pH", "0-14"),
+            Self::Flow => ("flow", "0-1e7 L/h"),
+            Self::InfluentFlow => ("influent flow", "above 0, up to 1e7 L/h"),
+            Self::PumpMax => ("pump maximum", "above 0, up to 1e7 L/h"),
+            Self::PumpStep => ("pump step", "above 0, up to the pump maximum"),
+            Self::PhWidth => ("pH band", "above 0, up to 14 pH"),
+        }
+    }
+}
+
+/// A checked input was NaN, infinite or out of its range; carries the rejected value.
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct InvalidInput {
+    /// What was checked.
+    pub quantity: Quantity,
+    /// The rejected value, in the quantity's unit (may be NaN or infinite).
+    pub value: f64,
+}
+
+impl core::fmt::Display for InvalidInput {
+    fn fmt(&self, f: &mut core::fmt::Formatter<'_>) -> core::fmt::Result {
+        let (name, range) = self.quantity.describe();
+        let v = self.value;
+        // Scientific notation for values a fixed format would print as hundreds of digits.
+        if v.is_finite() && v != 0.0 && !(1e-4..1e6).contains(&v.abs()) {
+            write!(f, "{name} {v:e} is outside the valid range {range}")
+        } else {
+            write!(f, "{name} {v} is outside the valid range {range}")
+        }
+    }
+}
+
+impl core::error::Error for InvalidInput {}
+
+fn within<R: Real>(quantity: Quantity, value: R, lo: f64, hi: f64, lo_open: bool) -> Result<R, InvalidInput> {
+    let v = value.to_f64();
+    let above_lo = if lo_open { v > lo } else { v >= lo };
+    if v.is_finite() && above_lo && v <= hi { Ok(value) } else { Err(InvalidInput { quantity, value: v }) }
+}
+
+/// A pH on the 0–14 scale (setpoint, limit or measurement), checked at construction.
+#[derive(Clone, Copy, Debug, PartialEq, PartialOrd)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct Ph<R: Real>(R);
+
+impl<R: Real> Ph<R> {
+    /// Checks that `ph` is finite and within 0–14.
+    pub fn new(ph: R) -> Result<Self, InvalidInput> {
+        within(Quantity::Ph, ph, PH_SCALE.0, PH_SCALE.1, false).map(Self)
+    }
+
+    /// The value, pH.
+    pub fn ph(self) -> R {
+        self.0
+    }
+}
+
+/// A width on the pH scale (a control band's full width), checked: above 0, up to 14 pH.
+#[derive(Clone, Copy, Debug, PartialEq, PartialOrd)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct PhWidth<R: Real>(R);
+
+impl<R: Real> PhWidth<R> {
+    /// Checks that `width_ph` is finite, above 0 and at most 14.
+    pub fn new(width_ph: R) -> Result<Self, InvalidInput> {
+        within(Quantity::PhWidth, width_ph, 0.0, PH_SCALE.1, true).map(Self)
+    }
+
+    /// The value, pH.
+    pub fn ph(self) -> R {
+        self.0
+    }
+}
+
+/// A flow in litres per hour, checked: finite, 0–[`MAX_FLOW_L_PER_H`].
+#[derive(Clone, Copy, Debug, PartialEq, PartialOrd)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct LitresPerHour<R: Real>(R);
+
+impl<R: Real> LitresPerHour<R> {
+    /// Checks that `l_per_h` is finite and within 0–[`MAX_FLOW_L_PER_H`].
+    pub fn new(l_per_h: R) -> Result<Self, InvalidInput> {
+        within(Quantity::Flow, l_per_h, 0.0, MAX_FLOW_L_PER_H, false).map(Self)
+    }
+
+    /// The value, L/h.
+    pub fn l_per_h(self) -> R {
+        self.0
+    }
+
+    /// `Ok` when the flow is above zero; else the error for `quantity` with this value.
+    pub fn positive(self, quantity: Quantity) -> Result<Self, InvalidInput> {
+        within(quantity, self.0, 0.0, MAX_FLOW_L_PER_H, true).map(Self)
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -74,5 +199,31 @@ mod tests {
         assert!(Celsius::new(f64::NAN).is_err());
         assert!(Celsius::new(f32::INFINITY).is_err());
         assert!((Celsius::new(25.0_f64).unwrap().kelvin() - 298.15).abs() < 1e-12);
+    }
+
+    #[test]
+    fn checked_inputs_carry_the_rejected_value() {
+        assert_eq!(Ph::new(7.0_f64).unwrap().ph(), 7.0);
+        assert!(Ph::new(0.0_f32).is_ok() && Ph::new(14.0_f32).is_ok());
+        assert_eq!(Ph::new(14.5_f64), Err(InvalidInput { quantity: Quantity::Ph, value: 14.5 }));
+        assert!(Ph::new(f64::NAN).unwrap_err().value.is_nan());
+        assert_eq!(PhWidth::new(0.0_f64), Err(InvalidInput { quantity: Quantity::PhWidth, value: 0.0 }));
+        assert!(PhWidth::new(14.0_f64).is_ok() && PhWidth::new(14.01_f64).is_err());
+        assert!(LitresPerHour::new(0.0_f64).is_ok());
+        assert_eq!(LitresPerHour::new(-1.0_f64), Err(InvalidInput { quantity: Quantity::Flow, value: -1.0 }));
+        assert!(LitresPerHour::new(1e7_f64).is_ok() && LitresPerHour::new(1.1e7_f64).is_err());
+        let zero = LitresPerHour::new(0.0_f64).unwrap();
+        assert_eq!(
+            zero.positive(Quantity::InfluentFlow),
+            Err(InvalidInput { quantity: Quantity::InfluentFlow, value: 0.0 })
+        );
+    }
+
+    #[test]
+    fn messages_use_scientific_notation_for_extreme_values() {
+        let huge = std::format!("{}", InvalidInput { quantity: Quantity::Flow, value: 1e300 });
+        assert_eq!(huge, "flow 1e300 is outside the valid range 0-1e7 L/h");
+        let ph = std::format!("{}", InvalidInput { quantity: Quantity::Ph, value: 15.5 });
+        assert_eq!(ph, "pH 15.5 is outside the valid range 0-14");
     }
 }

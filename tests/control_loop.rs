@@ -152,10 +152,22 @@ fn adaptation_learns_an_influent_whose_alkalinity_is_30_percent_off() {
     // The correction adaptation should find, from the dose model alone (no adaptation code):
     // the strong-ion excess that makes the configured ideal model need the dose the true
     // (Davies) water needs, Δc = −ΔQ·g_r(sp)/Q_in.
-    let request = phdose::titration::DoseRequest { setpoint_ph: sp, pump: None, band_ph: None };
-    let q_true = phdose::titration::plan(&true_water, 1200.0, &caustic(Activity::Davies), &request).unwrap();
+    let request = phdose::titration::DoseRequest::new(phdose::units::Ph::new(sp).unwrap());
+    let q_true = phdose::titration::plan(
+        &true_water,
+        phdose::units::LitresPerHour::new(1200.0).unwrap(),
+        &caustic(Activity::Davies),
+        &request,
+    )
+    .unwrap();
     let configured = water(0.0015, 0.0022, Activity::Ideal);
-    let q_conf = phdose::titration::plan(&configured, 1200.0, &caustic(Activity::Ideal), &request).unwrap();
+    let q_conf = phdose::titration::plan(
+        &configured,
+        phdose::units::LitresPerHour::new(1200.0).unwrap(),
+        &caustic(Activity::Ideal),
+        &request,
+    )
+    .unwrap();
     let g_r = caustic(Activity::Ideal).charge_excess_eq_per_l(sp, 0.0);
     let expected = -(q_true.reagent_flow_l_per_h - q_conf.reagent_flow_l_per_h) * g_r / 1200.0;
 

@@ -42,7 +42,12 @@ pub enum CompositionError {
     /// The temperature is outside 0–100 °C.
     Temperature(TemperatureOutOfRange),
     /// Mixing flows must be finite, ≥ 0 and not both zero (L/h).
-    InvalidFlow,
+    InvalidFlow {
+        /// The first (own) flow, L/h.
+        first_l_per_h: f64,
+        /// The second (other) flow, L/h.
+        second_l_per_h: f64,
+    },
 }
 
 impl core::fmt::Display for CompositionError {
@@ -59,7 +64,10 @@ impl core::fmt::Display for CompositionError {
             Self::UnknownSubstance(e) => core::fmt::Display::fmt(e, f),
             Self::InvalidSystem(e) => core::fmt::Display::fmt(e, f),
             Self::Temperature(e) => core::fmt::Display::fmt(e, f),
-            Self::InvalidFlow => f.write_str("flows must be finite, non-negative and not both zero"),
+            Self::InvalidFlow { first_l_per_h, second_l_per_h } => write!(
+                f,
+                "mixing flows {first_l_per_h:e} and {second_l_per_h:e} L/h must be finite, non-negative and not both zero"
+            ),
         }
     }
 }
@@ -261,7 +269,7 @@ impl<R: Real, const N: usize> Solution<R, N> {
     ) -> Result<Self, CompositionError> {
         let (a, b) = (flow_self_l_per_h.to_f64(), flow_other_l_per_h.to_f64());
         if !(a.is_finite() && b.is_finite()) || a < 0.0 || b < 0.0 || a + b <= 0.0 {
-            return Err(CompositionError::InvalidFlow);
+            return Err(CompositionError::InvalidFlow { first_l_per_h: a, second_l_per_h: b });
         }
         let total = flow_self_l_per_h + flow_other_l_per_h;
         let (wa, wb) = (flow_self_l_per_h / total, flow_other_l_per_h / total);
@@ -345,8 +353,11 @@ mod tests {
         assert!((m.total_of("carbonate") - 0.003).abs() < 1e-15);
         assert!((m.total_of("phosphate") - 0.0025).abs() < 1e-15);
         assert!((m.strong_charge_eq_per_l() - (0.75 * 0.004 + 0.25 * 0.005)).abs() < 1e-15);
-        assert_eq!(a.mix(0.0, &b, 0.0), Err(CompositionError::InvalidFlow));
-        assert_eq!(a.mix(-1.0, &b, 1.0), Err(CompositionError::InvalidFlow));
+        assert_eq!(a.mix(0.0, &b, 0.0), Err(CompositionError::InvalidFlow { first_l_per_h: 0.0, second_l_per_h: 0.0 }));
+        assert_eq!(
+            a.mix(-1.0, &b, 1.0),
+            Err(CompositionError::InvalidFlow { first_l_per_h: -1.0, second_l_per_h: 1.0 })
+        );
     }
 
     #[test]

@@ -105,8 +105,10 @@ impl core::error::Error for SolveError {}
 pub struct SolverOptions<R: Real> {
     /// Start from this pH (e.g. the previous cycle's result). `None`: cold start at pH 7.
     pub warm_start_ph: Option<R>,
-    /// Davies mode: start the ionic-strength fixed point here (mol/L, e.g. the previous
-    /// cycle's). `None`: computed from the composition at the start pH (one evaluation).
+    /// Davies mode: the previous cycle's ionic strength, mol/L. It only chooses the activity
+    /// coefficients of the one evaluation that computes the first ionic strength from the
+    /// composition at the start pH; a value that is not finite or outside 0–0.5 mol/L is
+    /// ignored. The answer never depends on it beyond the solver's tolerance.
     pub warm_start_ionic_strength: Option<R>,
     /// Iteration limit per inner solve; clamped to [`max_ph_iterations`]. Lowering it is for
     /// tests of the limit path and for hard real-time budgets.
@@ -137,6 +139,30 @@ pub struct Equilibrium<R: Real> {
     pub residual_eq_per_l: R,
     /// The Davies factor used (log10 γ(z) = −factor·z²); 0 in ideal mode.
     pub davies_factor: R,
+    /// How finely the working precision can place this root, pH: ε·S/β, where ε is the real
+    /// type's relative precision ([`Real::RELATIVE_PRECISION`]: 2.2e-16 for `f64`, 1.2e-7 for
+    /// `f32`, 2.4e-3 for `f32` with `fast-math`), S the sum of the magnitudes
+    /// of every charge term in the balance (H⁺, OH⁻, 2× the strong ions' ionic strength, each
+    /// system's total times its largest charge), eq/L, and β the buffer capacity. Rounding of
+    /// the charge sum alone moves the root by about this much, whatever the tolerance; see
+    /// [`Equilibrium::resolution_limited`].
+    pub resolution_ph: R,
+}
+
+impl<R: Real> Equilibrium<R> {
+    /// `true` when the working precision, not the solver's tolerance, limits this pH: the
+    /// [`resolution_ph`](Self::resolution_ph) estimate exceeds the solver's pH tolerance
+    /// (`R::PH_TOLERANCE`). Then the pH is only good to a few times `resolution_ph` — in `f32`
+    /// near an unbuffered equivalence point that can be 1e-3 to 0.1 pH; solve in `f64` (or
+    /// control on a buffered setpoint) when that matters.
+    pub fn resolution_limited(&self) -> bool {
+        self.resolution_ph > R::PH_TOLERANCE
+    }
+}
+
+/// `value` limited to [0, `max`] (an ionic-strength iterate kept inside the Davies range).
+fn clamp<R: Real>(value: R, max: R) -> R {
+    value.max(R::ZERO).min(max)
 }
 
 /// Result of one charge-balance evaluation.
@@ -278,48 +304,55 @@ impl<R: Real, const N: usize> Solution<R, N> {
             }
             Activity::Davies => {
                 let a = self.debye_huckel_a();
-                let mut total_iterations = 0_u32;
-                let mut ionic = match options.warm_start_ionic_strength {
-                    Some(i) if i.is_finite() && i >= R::ZERO => i,
-                    Some(_) => return Err(SolveError::NonFinite),
-                    None => {
-                        total_iterations = 1;
-                        let af0 = activity::davies_factor(a, self.strong_ionic_strength_mol_per_l());
-                        self.evaluate(start, af0).ionic_strength
-                    }
+                let max_ionic = R::from_f64(DAVIES_MAX_IONIC_STRENGTH);
+                // The strong ions alone: no pH can bring the ionic strength below this.
+                let strong = self.strong_ionic_strength_mol_per_l();
+                if strong.to_f64() > DAVIES_MAX_IONIC_STRENGTH {
+                    return Err(SolveError::IonicStrengthTooHigh { mol_per_l: strong.to_f64() });
+                }
+                // The first ionic strength comes from this composition (one evaluation at the
+                // start pH), never from a start guess or a previous cycle alone: a warm start
+                // after a salinity change then begins at the new water's salinity. The previous
+                // cycle's ionic strength, when it is a valid one, only picks the activity
+                // coefficients of that evaluation. Iterates are kept inside the Davies range;
+                // only a converged ionic strength beyond it is refused.
+                let hint = match options.warm_start_ionic_strength {
+                    Some(i) if i.is_finite() && i >= R::ZERO && i <= max_ionic => i,
+                    _ => strong,
                 };
+                let mut total_iterations = 1_u32;
+                let mut ionic = clamp(self.evaluate(start, activity::davies_factor(a, hint)).ionic_strength, max_ionic);
                 let mut previous_delta: Option<R> = None;
                 for _round in 0..MAX_ACTIVITY_ITERATIONS {
-                    if ionic.to_f64() > DAVIES_MAX_IONIC_STRENGTH {
-                        return Err(SolveError::IonicStrengthTooHigh { mol_per_l: ionic.to_f64() });
-                    }
                     let af = activity::davies_factor(a, ionic);
                     let (ph, e, it) = self.inner_solve(start, af, limit, options.newton)?;
                     total_iterations = total_iterations.saturating_add(it);
                     let next = e.ionic_strength;
-                    // Converged when the ionic strength reproduces itself, or when the pH did
-                    // not move from where this round started (the activity update changed
-                    // nothing the solver can resolve), or when the new ionic strength moves
-                    // log10 γ by less than a tenth of the pH tolerance. The last test stops the
-                    // 2-cycles f32 fell into when bisection jitter (or `fast-math` noise) moved
-                    // an H⁺-dominated ionic strength by more than its relative tolerance.
+                    // Converged when the ionic strength at the root reproduces the one its
+                    // activity coefficients came from: relatively, or to where log10 γ moves by
+                    // less than a tenth of the pH tolerance (the test that stops the 2-cycles
+                    // noisy f32 arithmetic can fall into on an H⁺-dominated ionic strength).
+                    // A pH that did not move is *not* convergence: after a salinity change
+                    // the previous pH solves the old activity coefficients in one iteration.
                     let tol = R::IONIC_STRENGTH_TOLERANCE * next.max(R::from_f64(1e-12));
                     let af_moved = (activity::davies_factor(a, next) - af).abs();
-                    if (next - ionic).abs() <= tol
-                        || (it == 1 && (ph - start).abs() <= R::PH_TOLERANCE)
-                        || af_moved <= R::from_f64(0.1) * R::PH_TOLERANCE
-                    {
-                        if next.to_f64() > DAVIES_MAX_IONIC_STRENGTH {
+                    if (next - ionic).abs() <= tol || af_moved <= R::from_f64(0.1) * R::PH_TOLERANCE {
+                        if next > max_ionic {
                             return Err(SolveError::IonicStrengthTooHigh { mol_per_l: next.to_f64() });
                         }
                         return Ok(self.finish(ph, e, total_iterations, af));
+                    }
+                    if next > max_ionic && ionic >= max_ionic {
+                        // Even the activity coefficients of the model's upper limit give a
+                        // root beyond it: the fixed point lies outside the Davies range.
+                        return Err(SolveError::IonicStrengthTooHigh { mol_per_l: next.to_f64() });
                     }
                     // Damp the update (average with the last value) when it changes direction:
                     // the fixed point is then cycling, which noisy f32 arithmetic can cause.
                     let delta = next - ionic;
                     let cycling = previous_delta.is_some_and(|p: R| (p > R::ZERO) != (delta > R::ZERO));
                     previous_delta = Some(delta);
-                    ionic = if cycling { (ionic + next) * R::from_f64(0.5) } else { next };
+                    ionic = clamp(if cycling { (ionic + next) * R::from_f64(0.5) } else { next }, max_ionic);
                     start = ph;
                 }
                 Err(SolveError::ActivityNotConverged)
@@ -329,6 +362,7 @@ impl<R: Real, const N: usize> Solution<R, N> {
 
     fn finish(&self, ph: R, e: Eval<R>, iterations: u32, af: R) -> Equilibrium<R> {
         Equilibrium {
+            resolution_ph: self.resolution(ph, af, e.beta),
             ph,
             iterations,
             buffer_capacity_mol_per_l_per_ph: e.beta,
@@ -407,6 +441,20 @@ impl<R: Real, const N: usize> Solution<R, N> {
             x = next;
         }
         Err(SolveError::IterationLimit { iterations })
+    }
+
+    /// ε·S/β at `ph` (see [`Equilibrium::resolution_ph`]). One pass over the components, no
+    /// exponentials beyond H⁺ and OH⁻.
+    pub(crate) fn resolution(&self, ph: R, af: R, beta: R) -> R {
+        let mut scale = (af - ph).exp10() + (ph - self.pkw() + af).exp10();
+        scale += R::from_f64(2.0) * self.strong_ionic_strength_mol_per_l();
+        for c in self.components() {
+            let z0 = c.system.charge_of_form(0);
+            let z_last = z0 - i32::from(c.system.steps);
+            scale += c.total_mol_per_l * R::from_i32(z0.abs().max(z_last.abs()));
+        }
+        let epsilon = R::from_f64(R::RELATIVE_PRECISION);
+        if beta > R::ZERO { epsilon * scale / beta } else { R::from_f64(f64::INFINITY) }
     }
 
     /// Accepts a converged pH unless it sits on the edge of the search bracket (no root).

@@ -12,6 +12,7 @@ use crate::chem::{CompositionError, Equilibrium, Solution, SolveError};
 use crate::real::Real;
 use crate::titration::dose::{DoseError, DoseRequest, plan};
 use crate::units::Celsius;
+use crate::units::{InvalidInput, LitresPerHour, Ph};
 
 /// Room for acid–base systems in a reagent (sulfuric acid needs one, caustic none).
 pub const REAGENT_CAPACITY: usize = 2;
@@ -131,8 +132,10 @@ pub fn compute<R: Real, const N: usize>(
     setpoint_ph: R,
     correction_eq_per_l: R,
 ) -> Result<FeedForward<R>, ModelError> {
-    let request = DoseRequest { setpoint_ph, pump: None, band_ph: None };
-    let p = plan(adapted, influent_flow_l_per_h, &reagent.solution, &request).map_err(ModelError::Dose)?;
+    let checked = |e: InvalidInput| ModelError::Dose(DoseError::Input(e));
+    let request = DoseRequest::new(Ph::new(setpoint_ph).map_err(checked)?);
+    let flow = LitresPerHour::new(influent_flow_l_per_h).map_err(checked)?;
+    let p = plan(adapted, flow, &reagent.solution, &request).map_err(ModelError::Dose)?;
     let mut r = reagent.solution.clone();
     r.set_temperature(adapted.temperature());
     let gr = r.charge_excess_eq_per_l(setpoint_ph, p.mixture_ionic_strength_mol_per_l);
@@ -225,7 +228,10 @@ pub fn tank_equilibrium<R: Real, const N: usize>(
     let [phi_c, phi_a] = fractions;
     let mut influent_share = R::ONE - phi_c.max(R::ZERO) - phi_a.max(R::ZERO);
     if !positive(influent_share) {
-        return Err(ModelError::Composition(CompositionError::InvalidFlow));
+        return Err(ModelError::Composition(CompositionError::InvalidFlow {
+            first_l_per_h: influent_share.to_f64(),
+            second_l_per_h: (phi_c + phi_a).to_f64(),
+        }));
     }
     let mut tank = adapted.clone();
     for (slot, phi) in reagents.iter().zip(fractions) {

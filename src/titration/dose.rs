@@ -11,9 +11,10 @@
 
 use heapless::Vec;
 
-use crate::chem::activity::Activity;
+use crate::chem::activity::{Activity, DAVIES_MAX_IONIC_STRENGTH};
 use crate::chem::{CompositionError, Equilibrium, Solution, SolveError};
 use crate::real::Real;
+use crate::units::{InvalidInput, LitresPerHour, Ph, PhWidth, Quantity};
 
 /// Most ionic-strength rounds of one dose computation.
 pub const MAX_DOSE_ROUNDS: u32 = 12;
@@ -22,26 +23,66 @@ pub const SETPOINT_SCAN_STEPS: u32 = 20;
 /// Spacing of that scan, pH.
 pub const SETPOINT_SCAN_SPACING_PH: f64 = 0.1;
 
-/// A metering pump.
+/// A metering pump, checked at construction: maximum above 0 and at most
+/// [`crate::units::MAX_FLOW_L_PER_H`] L/h, step above 0 and at most the maximum.
 #[derive(Clone, Copy, Debug, PartialEq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct Pump<R: Real> {
-    /// Highest flow, L/h (> 0).
-    pub max_l_per_h: R,
-    /// Smallest flow change the pump can make (stroke/step resolution), L/h (> 0).
-    pub step_l_per_h: R,
+    max_l_per_h: R,
+    step_l_per_h: R,
 }
 
-/// What to plan for.
+impl<R: Real> Pump<R> {
+    /// A pump delivering at most `max_l_per_h` in steps of `step_l_per_h` (its stroke or
+    /// speed resolution), both L/h. The error names the value that is out of range.
+    pub fn new(max_l_per_h: R, step_l_per_h: R) -> Result<Self, InvalidInput> {
+        let max = LitresPerHour::new(max_l_per_h)
+            .and_then(|m| m.positive(Quantity::PumpMax))
+            .map_err(|e| InvalidInput { quantity: Quantity::PumpMax, ..e })?;
+        let step = step_l_per_h.to_f64();
+        if !(step.is_finite() && step > 0.0 && step_l_per_h <= max.l_per_h()) {
+            return Err(InvalidInput { quantity: Quantity::PumpStep, value: step });
+        }
+        Ok(Self { max_l_per_h, step_l_per_h })
+    }
+
+    /// Highest flow, L/h (> 0).
+    pub fn max_l_per_h(&self) -> R {
+        self.max_l_per_h
+    }
+
+    /// Smallest flow change the pump can make, L/h (> 0, ≤ the maximum).
+    pub fn step_l_per_h(&self) -> R {
+        self.step_l_per_h
+    }
+}
+
+/// What to plan for. Every field is a checked type, so a request is valid by construction.
 #[derive(Clone, Copy, Debug, PartialEq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct DoseRequest<R: Real> {
-    /// Target pH (0–14).
-    pub setpoint_ph: R,
+    /// Target pH.
+    pub setpoint: Ph<R>,
     /// The pump, if known (enables the capacity and steepness checks).
     pub pump: Option<Pump<R>>,
-    /// Full width of the control band, pH (> 0); with a pump, enables the steepness check.
-    pub band_ph: Option<R>,
+    /// Full width of the control band; with a pump, enables the steepness check.
+    pub band: Option<PhWidth<R>>,
+}
+
+impl<R: Real> DoseRequest<R> {
+    /// A request for `setpoint` alone (no pump, no band: no capacity or steepness check).
+    pub fn new(setpoint: Ph<R>) -> Self {
+        Self { setpoint, pump: None, band: None }
+    }
+
+    /// Checks raw numbers into a request (the error names the first value out of range).
+    pub fn checked(setpoint_ph: R, pump: Option<(R, R)>, band_ph: Option<R>) -> Result<Self, InvalidInput> {
+        Ok(Self {
+            setpoint: Ph::new(setpoint_ph)?,
+            pump: pump.map(|(max, step)| Pump::new(max, step)).transpose()?,
+            band: band_ph.map(PhWidth::new).transpose()?,
+        })
+    }
 }
 
 /// A check that failed but still leaves a plan.
@@ -68,6 +109,17 @@ pub enum DoseCheck<R: Real> {
         /// Nearest setpoint (within ±2 pH, 0.1 apart) where one step fits the band, if any.
         nearest_controllable_setpoint_ph: Option<R>,
     },
+    /// The working precision cannot resolve the plan: the mixture's pH at the planned flow is
+    /// only known to about `resolution_ph` (see [`crate::chem::Equilibrium::resolution_ph`]),
+    /// which is more than a tenth of the band, or more than one pump step moves the pH. Typical
+    /// of `f32` near an unbuffered equivalence point; plan in `f64` or choose a buffered setpoint.
+    ResolutionLimited {
+        /// How finely the precision places the mixture's pH, pH.
+        resolution_ph: R,
+        /// What the plan needs resolved: the smaller of a tenth of the band and one pump
+        /// step's pH change, pH.
+        needed_ph: R,
+    },
 }
 
 /// A feed-forward plan.
@@ -91,8 +143,13 @@ pub struct DosePlan<R: Real> {
     pub influent_ph: R,
     /// Ionic-strength rounds used (1 in ideal mode).
     pub rounds: u32,
+    /// How finely the working precision places the mixture's pH at the planned flow, pH
+    /// (ε·S/β of the mixture, as [`crate::chem::Equilibrium::resolution_ph`]): the planned flow
+    /// reaches the setpoint to within a few times this. About 1e-12 or less in `f64`; in `f32`
+    /// from 1e-6 on buffered setpoints to 0.1 near unbuffered equivalence points.
+    pub resolution_ph: R,
     /// Checks that failed (empty when all is well).
-    pub checks: Vec<DoseCheck<R>, 2>,
+    pub checks: Vec<DoseCheck<R>, 3>,
 }
 
 impl<R: Real> DosePlan<R> {
@@ -121,14 +178,18 @@ pub enum DoseError {
         /// The setpoint.
         setpoint_ph: f64,
     },
-    /// Setpoint not finite or outside 0–14.
-    InvalidSetpoint,
-    /// Influent flow not finite or ≤ 0 (or above [`crate::titration::stream::MAX_FLOW_L_PER_H`]).
-    InvalidFlow,
-    /// Pump maximum or step not finite or ≤ 0, or the step larger than the maximum.
-    InvalidPump,
-    /// Control band not finite or ≤ 0.
-    InvalidBand,
+    /// An input out of its range (the influent flow is zero, or a raw value given to
+    /// [`DoseRequest::checked`]); carries the rejected value.
+    Input(InvalidInput),
+    /// Davies mode: the mixture that would reach the setpoint (or, for a setpoint beyond the
+    /// reagent, the reagent itself) has an ionic strength above the activity model's range
+    /// ([`crate::chem::activity::DAVIES_MAX_IONIC_STRENGTH`]), where no dose can be trusted.
+    BeyondActivityModel {
+        /// The ionic strength reached, mol/L.
+        ionic_strength_mol_per_l: f64,
+        /// The setpoint.
+        setpoint_ph: f64,
+    },
     /// A composition error (e.g. the mixture's capacity `N` cannot hold the reagent's systems).
     Composition(CompositionError),
     /// Solving the influent or the reagent failed.
@@ -148,12 +209,12 @@ impl core::fmt::Display for DoseError {
                 f,
                 "unreachable: setpoint {setpoint_ph:.2} is beyond pH {limit_ph:.2}, which even an unlimited dose only approaches"
             ),
-            Self::InvalidSetpoint => f.write_str("setpoint must be a pH within 0-14"),
-            Self::InvalidFlow => f.write_str("influent flow must be finite and positive"),
-            Self::InvalidPump => f.write_str(
-                "pump maximum and step must be finite and positive, with the step no larger than the maximum",
+            Self::BeyondActivityModel { ionic_strength_mol_per_l, setpoint_ph } => write!(
+                f,
+                "unreachable within the activity model: setpoint {setpoint_ph:.2} needs an ionic strength of {ionic_strength_mol_per_l:.3} mol/L, above the Davies limit {} mol/L",
+                crate::chem::activity::DAVIES_MAX_IONIC_STRENGTH
             ),
-            Self::InvalidBand => f.write_str("control band must be finite and positive"),
+            Self::Input(e) => core::fmt::Display::fmt(e, f),
             Self::Composition(e) => core::fmt::Display::fmt(e, f),
             Self::Solve(e) => core::fmt::Display::fmt(e, f),
             Self::NotConverged => f.write_str("dose refinement for activity did not converge"),
@@ -163,15 +224,17 @@ impl core::fmt::Display for DoseError {
 
 impl core::error::Error for DoseError {}
 
-fn positive_finite<R: Real>(v: R) -> bool {
-    let x = v.to_f64();
-    x.is_finite() && x > 0.0
+impl From<InvalidInput> for DoseError {
+    fn from(e: InvalidInput) -> Self {
+        Self::Input(e)
+    }
 }
 
 /// The core of the closed form at one setpoint; no pump or band checks.
 struct Core<R: Real> {
     flow: R,
     beta: R,
+    resolution: R,
     ionic: R,
     gain: R,
     rounds: u32,
@@ -205,13 +268,21 @@ impl<R: Real, const N: usize, const M: usize> Mixing<'_, R, N, M> {
             };
             let mixture = influent.mix(q_in, reagent, flow).map_err(DoseError::Composition)?;
             let e = mixture.evaluate(x, af);
-            let settled = match influent.activity() {
-                Activity::Ideal => true,
-                Activity::Davies => (e.ionic_strength - ionic).abs() <= R::IONIC_STRENGTH_TOLERANCE * e.ionic_strength,
-            };
+            let davies = influent.activity() == Activity::Davies;
+            let settled = !davies || (e.ionic_strength - ionic).abs() <= R::IONIC_STRENGTH_TOLERANCE * e.ionic_strength;
+            let beyond = davies && e.ionic_strength.to_f64() > DAVIES_MAX_IONIC_STRENGTH;
+            if beyond && (settled || ionic.to_f64() > DAVIES_MAX_IONIC_STRENGTH) {
+                // The mixture at the setpoint lies beyond the activity model (two rounds in a
+                // row, or settled there): the solver would refuse the plan's own mixture.
+                return Err(DoseError::BeyondActivityModel {
+                    ionic_strength_mol_per_l: e.ionic_strength.to_f64(),
+                    setpoint_ph: x.to_f64(),
+                });
+            }
             if settled {
                 let gain = if e.beta > R::ZERO { gr / ((q_in + flow) * e.beta) } else { R::ZERO };
-                return Ok(Core { flow, beta: e.beta, ionic: e.ionic_strength, gain, rounds: round });
+                let resolution = mixture.resolution(x, af, e.beta);
+                return Ok(Core { flow, beta: e.beta, ionic: e.ionic_strength, resolution, gain, rounds: round });
             }
             ionic = e.ionic_strength;
         }
@@ -219,7 +290,9 @@ impl<R: Real, const N: usize, const M: usize> Mixing<'_, R, N, M> {
     }
 
     /// Which way is the setpoint unreachable? Compares the reagent's own pull at the influent's
-    /// pH; the limit of an unlimited dose is the reagent's own pH (ideal activities).
+    /// pH; the limit of an unlimited dose is the reagent's own pH in the influent's activity
+    /// model (the mixture's model). A reagent too concentrated for the Davies model gives
+    /// [`DoseError::BeyondActivityModel`].
     fn unreachable_reason(&self, x: R) -> DoseError {
         let setpoint_ph = x.to_f64();
         let influent_ph = self.influent_eq.ph;
@@ -228,9 +301,12 @@ impl<R: Real, const N: usize, const M: usize> Mixing<'_, R, N, M> {
             return DoseError::WrongDirection { influent_ph: influent_ph.to_f64(), setpoint_ph };
         }
         let mut own = self.reagent.clone();
-        own.set_activity(Activity::Ideal);
+        own.set_activity(self.influent.activity());
         match own.solve() {
             Ok(eq) => DoseError::BeyondReagent { limit_ph: eq.ph.to_f64(), setpoint_ph },
+            Err(SolveError::IonicStrengthTooHigh { mol_per_l }) => {
+                DoseError::BeyondActivityModel { ionic_strength_mol_per_l: mol_per_l, setpoint_ph }
+            }
             Err(e) => DoseError::Solve(e),
         }
     }
@@ -305,50 +381,53 @@ pub const MAX_DILUTION: f64 = 1e6;
 /// and, only when the steepness check fails, up to 2·[`SETPOINT_SCAN_STEPS`] more such plans.
 pub fn plan<R: Real, const N: usize, const M: usize>(
     influent: &Solution<R, N>,
-    influent_flow_l_per_h: R,
+    influent_flow: LitresPerHour<R>,
     reagent: &Solution<R, M>,
     request: &DoseRequest<R>,
 ) -> Result<DosePlan<R>, DoseError> {
-    let x = request.setpoint_ph;
-    let xf = x.to_f64();
-    if !(xf.is_finite() && (0.0..=14.0).contains(&xf)) {
-        return Err(DoseError::InvalidSetpoint);
-    }
-    if !positive_finite(influent_flow_l_per_h) || influent_flow_l_per_h.to_f64() > super::stream::MAX_FLOW_L_PER_H {
-        return Err(DoseError::InvalidFlow);
-    }
-    if !request.pump.is_none_or(|p| {
-        positive_finite(p.max_l_per_h) && positive_finite(p.step_l_per_h) && p.step_l_per_h <= p.max_l_per_h
-    }) {
-        return Err(DoseError::InvalidPump);
-    }
-    if !request.band_ph.is_none_or(positive_finite) {
-        return Err(DoseError::InvalidBand);
-    }
+    let x = request.setpoint.ph();
+    let influent_flow_l_per_h = influent_flow.positive(Quantity::InfluentFlow)?.l_per_h();
     let mut reagent = reagent.clone();
     reagent.set_temperature(influent.temperature());
     let influent_eq = influent.solve().map_err(DoseError::Solve)?;
     let m = Mixing { influent, influent_flow_l_per_h, influent_eq, reagent: &reagent };
     let core = m.core(x)?;
 
-    let mut checks = Vec::new();
+    // At most three checks, one of each kind, so the pushes below cannot overflow the
+    // capacity of 3 (asserted in debug and test builds).
+    let mut checks: Vec<DoseCheck<R>, 3> = Vec::new();
     let mut gain_ph_per_step = None;
     if let Some(pump) = request.pump {
         if core.flow > pump.max_l_per_h {
-            let _ = checks.push(DoseCheck::BeyondPump { needed_l_per_h: core.flow, max_l_per_h: pump.max_l_per_h });
+            let pushed =
+                checks.push(DoseCheck::BeyondPump { needed_l_per_h: core.flow, max_l_per_h: pump.max_l_per_h });
+            debug_assert!(pushed.is_ok());
         }
         let step = m.step_delta_ph(x, core.flow, pump.step_l_per_h)?;
         gain_ph_per_step = Some(step);
-        if let Some(band) = request.band_ph
+        if let Some(band) = request.band.map(PhWidth::ph)
             && step.abs() > band
         {
-            let _ = checks.push(DoseCheck::TooSteep {
+            let pushed = checks.push(DoseCheck::TooSteep {
                 step_delta_ph: step.abs(),
                 band_ph: band,
                 dilute_reagent_by: m.dilution_needed(x, core.flow, pump.step_l_per_h, band),
                 nearest_controllable_setpoint_ph: m.nearest_controllable(x, pump, band),
             });
+            debug_assert!(pushed.is_ok());
         }
+    }
+    let band_need = request.band.map(|b| b.ph() * R::from_f64(0.1));
+    let step_need = gain_ph_per_step.map(R::abs);
+    let needed = match (band_need, step_need) {
+        (Some(b), Some(s)) => Some(b.min(s)),
+        (b, s) => b.or(s),
+    };
+    if let Some(needed_ph) = needed
+        && core.resolution > needed_ph
+    {
+        let pushed = checks.push(DoseCheck::ResolutionLimited { resolution_ph: core.resolution, needed_ph });
+        debug_assert!(pushed.is_ok());
     }
     Ok(DosePlan {
         setpoint_ph: x,
@@ -359,6 +438,7 @@ pub fn plan<R: Real, const N: usize, const M: usize>(
         gain_ph_per_step,
         influent_ph: influent_eq.ph,
         rounds: core.rounds,
+        resolution_ph: core.resolution,
         checks,
     })
 }
@@ -389,8 +469,8 @@ mod tests {
         let influent = rinse();
         let reagent = caustic(2.0);
         for sp in [4.5, 6.5, 7.0, 8.5, 10.0] {
-            let req = DoseRequest { setpoint_ph: sp, pump: None, band_ph: None };
-            let p = plan(&influent, 1200.0, &reagent, &req).unwrap();
+            let req = DoseRequest::new(Ph::new(sp).unwrap());
+            let p = plan(&influent, LitresPerHour::new(1200.0).unwrap(), &reagent, &req).unwrap();
             let mut r = reagent.clone();
             r.set_temperature(influent.temperature());
             let mix = influent.mix(1200.0, &r, p.reagent_flow_l_per_h).unwrap();
@@ -404,8 +484,8 @@ mod tests {
     fn gain_matches_a_finite_difference() {
         let influent = rinse();
         let reagent = caustic(2.0);
-        let req = DoseRequest { setpoint_ph: 6.8, pump: None, band_ph: None };
-        let p = plan(&influent, 1200.0, &reagent, &req).unwrap();
+        let req = DoseRequest::new(Ph::new(6.8).unwrap());
+        let p = plan(&influent, LitresPerHour::new(1200.0).unwrap(), &reagent, &req).unwrap();
         let ph_at = |q: f64| influent.mix(1200.0, &reagent, q).unwrap().solve().unwrap().ph;
         let dq = 1e-4 * p.reagent_flow_l_per_h;
         let fd = (ph_at(p.reagent_flow_l_per_h + dq) - ph_at(p.reagent_flow_l_per_h - dq)) / (2.0 * dq);
@@ -418,28 +498,38 @@ mod tests {
     fn unreachable_setpoints_are_explained() {
         let influent = rinse();
         let reagent = caustic(0.01); // pH ≈ 12 reagent
-        let wrong = plan(&influent, 1200.0, &reagent, &DoseRequest { setpoint_ph: 2.0, pump: None, band_ph: None });
+        let wrong =
+            plan(&influent, LitresPerHour::new(1200.0).unwrap(), &reagent, &DoseRequest::new(Ph::new(2.0).unwrap()));
         assert!(matches!(wrong, Err(DoseError::WrongDirection { .. })), "{wrong:?}");
-        let beyond = plan(&influent, 1200.0, &reagent, &DoseRequest { setpoint_ph: 12.5, pump: None, band_ph: None });
+        let beyond =
+            plan(&influent, LitresPerHour::new(1200.0).unwrap(), &reagent, &DoseRequest::new(Ph::new(12.5).unwrap()));
         match beyond {
             Err(DoseError::BeyondReagent { limit_ph, .. }) => {
-                // 0.01 M NaOH at the influent's 14 °C: pH = pKw(14 °C) − 2 (ideal).
-                let expect = crate::chem::water::pkw(Celsius::new(14.0).unwrap()) - 2.0;
+                // 0.01 M NaOH at the influent's 14 °C, in the influent's (Davies) model:
+                // pH = pKw − 2 + log10 γ1 at I = 0.01 mol/L (the definition of pH on the
+                // activity scale; water's own ions are negligible here).
+                let t = Celsius::new(14.0).unwrap();
+                let log_gamma = -crate::chem::activity::davies_factor(crate::chem::activity::debye_huckel_a(t), 0.01);
+                let expect = crate::chem::water::pkw(t) - 2.0 + log_gamma;
                 assert!((limit_ph - expect).abs() < 0.01, "{limit_ph} vs {expect}");
             }
             other => panic!("{other:?}"),
         }
+        // Bad inputs are refused where they are made, with the rejected value.
+        assert_eq!(Ph::new(f64::NAN).map_err(|e| e.quantity), Err(Quantity::Ph));
+        assert_eq!(Pump::new(1.0, 2.0), Err(InvalidInput { quantity: Quantity::PumpStep, value: 2.0 }));
+        assert_eq!(Pump::new(0.0, 0.0), Err(InvalidInput { quantity: Quantity::PumpMax, value: 0.0 }));
         assert_eq!(
-            plan(&influent, 1200.0, &reagent, &DoseRequest { setpoint_ph: f64::NAN, pump: None, band_ph: None }),
-            Err(DoseError::InvalidSetpoint)
+            DoseRequest::checked(7.0, None, Some(0.0)),
+            Err(InvalidInput { quantity: Quantity::PhWidth, value: 0.0 })
         );
-        let bad_pump =
-            DoseRequest { setpoint_ph: 7.0, pump: Some(Pump { max_l_per_h: 1.0, step_l_per_h: 2.0 }), band_ph: None };
-        assert_eq!(plan(&influent, 1200.0, &reagent, &bad_pump), Err(DoseError::InvalidPump));
-        let bad_band = DoseRequest { setpoint_ph: 7.0, pump: None, band_ph: Some(0.0) };
-        assert_eq!(plan(&influent, 1200.0, &reagent, &bad_band), Err(DoseError::InvalidBand));
-        let ok = DoseRequest { setpoint_ph: 7.0, pump: None, band_ph: None };
-        assert_eq!(plan(&influent, -5.0, &reagent, &ok), Err(DoseError::InvalidFlow));
+        assert_eq!(DoseRequest::checked(15.0, None, None), Err(InvalidInput { quantity: Quantity::Ph, value: 15.0 }));
+        // A zero influent flow passes the flow type but not the plan.
+        let ok = DoseRequest::new(Ph::new(7.0).unwrap());
+        assert_eq!(
+            plan(&influent, LitresPerHour::new(0.0).unwrap(), &reagent, &ok),
+            Err(DoseError::Input(InvalidInput { quantity: Quantity::InfluentFlow, value: 0.0 }))
+        );
     }
 
     #[test]
@@ -450,12 +540,8 @@ mod tests {
         influent.add_formula("NaCl", 0.001).unwrap();
         let reagent = caustic(6.25);
         // Neutral setpoint on unbuffered water with strong caustic and a coarse pump: steep.
-        let req = DoseRequest {
-            setpoint_ph: 7.0,
-            pump: Some(Pump { max_l_per_h: 0.5, step_l_per_h: 0.01 }),
-            band_ph: Some(0.3),
-        };
-        let p = plan(&influent, 1200.0, &reagent, &req).unwrap();
+        let req = DoseRequest::checked(7.0, Some((0.5, 0.01)), Some(0.3)).unwrap();
+        let p = plan(&influent, LitresPerHour::new(1200.0).unwrap(), &reagent, &req).unwrap();
         let needed = p.reagent_flow_l_per_h;
         assert!(
             p.checks
@@ -494,26 +580,24 @@ mod tests {
         let mut weak: Solution<f64, 6> = Solution::new(Celsius::new(14.0).unwrap(), Activity::Davies);
         weak.add_formula("H2SO4", 0.0005).unwrap();
         weak.add_formula("NaHCO3", 0.0004).unwrap();
-        let fine = DoseRequest {
-            setpoint_ph: 8.0,
-            pump: Some(Pump { max_l_per_h: 5.0, step_l_per_h: 0.002 }),
-            band_ph: Some(0.3),
-        };
-        let p = plan(&weak, 1200.0, &reagent, &fine).unwrap();
+        let fine = DoseRequest::checked(8.0, Some((5.0, 0.002)), Some(0.3)).unwrap();
+        let p = plan(&weak, LitresPerHour::new(1200.0).unwrap(), &reagent, &fine).unwrap();
         let nearest = p.checks.iter().find_map(|c| match c {
             DoseCheck::TooSteep { nearest_controllable_setpoint_ph, .. } => *nearest_controllable_setpoint_ph,
             _ => None,
         });
         let sp = nearest.expect("a controllable setpoint nearby");
-        let again = plan(&weak, 1200.0, &reagent, &DoseRequest { setpoint_ph: sp, ..fine }).unwrap();
+        let again = plan(
+            &weak,
+            LitresPerHour::new(1200.0).unwrap(),
+            &reagent,
+            &DoseRequest { setpoint: Ph::new(sp).unwrap(), ..fine },
+        )
+        .unwrap();
         assert!(again.gain_ph_per_step.unwrap().abs() <= 0.3 && again.all_clear(), "{again:?}");
         // A buffered influent with a big pump and a fine step is all clear.
-        let ok = DoseRequest {
-            setpoint_ph: 6.3,
-            pump: Some(Pump { max_l_per_h: 20.0, step_l_per_h: 1e-4 }),
-            band_ph: Some(0.3),
-        };
-        assert!(plan(&rinse(), 1200.0, &reagent, &ok).unwrap().all_clear());
+        let ok = DoseRequest::checked(6.3, Some((20.0, 1e-4)), Some(0.3)).unwrap();
+        assert!(plan(&rinse(), LitresPerHour::new(1200.0).unwrap(), &reagent, &ok).unwrap().all_clear());
     }
 
     #[test]
@@ -527,8 +611,10 @@ mod tests {
         inf64.add_formula("NaHCO3", 0.0015).unwrap();
         inf64.add_formula("H2SO4", 0.0022).unwrap();
         let r64 = caustic(2.0);
-        let a = plan(&inf32, 1200.0, &r32, &DoseRequest { setpoint_ph: 7.5, pump: None, band_ph: None }).unwrap();
-        let b = plan(&inf64, 1200.0, &r64, &DoseRequest { setpoint_ph: 7.5, pump: None, band_ph: None }).unwrap();
+        let a =
+            plan(&inf32, LitresPerHour::new(1200.0).unwrap(), &r32, &DoseRequest::new(Ph::new(7.5).unwrap())).unwrap();
+        let b =
+            plan(&inf64, LitresPerHour::new(1200.0).unwrap(), &r64, &DoseRequest::new(Ph::new(7.5).unwrap())).unwrap();
         let rel = (f64::from(a.reagent_flow_l_per_h) - b.reagent_flow_l_per_h).abs() / b.reagent_flow_l_per_h;
         assert!(rel < 1e-3, "f32 flow {} vs f64 {}", a.reagent_flow_l_per_h, b.reagent_flow_l_per_h);
     }

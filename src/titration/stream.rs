@@ -2,41 +2,35 @@
 
 use crate::chem::{CompositionError, Solution};
 use crate::real::Real;
+use crate::units::LitresPerHour;
 
-/// Highest flow accepted anywhere, L/h (a sanity bound, 10⁷ L/h = 10 000 m³/h).
-pub const MAX_FLOW_L_PER_H: f64 = 1e7;
+pub use crate::units::MAX_FLOW_L_PER_H;
 
-/// A solution flowing at `flow_l_per_h`.
+/// A solution flowing at a checked flow.
 #[derive(Clone, Debug, PartialEq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct Stream<R: Real, const N: usize> {
     /// What flows.
     pub solution: Solution<R, N>,
-    /// Flow, L/h (0–[`MAX_FLOW_L_PER_H`]).
-    pub flow_l_per_h: R,
-}
-
-/// Checks a flow: finite and within 0–[`MAX_FLOW_L_PER_H`] L/h.
-pub fn check_flow<R: Real>(flow_l_per_h: R) -> Result<R, CompositionError> {
-    let f = flow_l_per_h.to_f64();
-    if f.is_finite() && (0.0..=MAX_FLOW_L_PER_H).contains(&f) {
-        Ok(flow_l_per_h)
-    } else {
-        Err(CompositionError::InvalidFlow)
-    }
+    /// How fast (0–[`MAX_FLOW_L_PER_H`] L/h, checked by its type).
+    pub flow: LitresPerHour<R>,
 }
 
 impl<R: Real, const N: usize> Stream<R, N> {
-    /// A stream; the flow must be finite and within 0–[`MAX_FLOW_L_PER_H`] L/h.
-    pub fn new(solution: Solution<R, N>, flow_l_per_h: R) -> Result<Self, CompositionError> {
-        Ok(Self { solution, flow_l_per_h: check_flow(flow_l_per_h)? })
+    /// A stream of `solution` at `flow`.
+    pub fn new(solution: Solution<R, N>, flow: LitresPerHour<R>) -> Self {
+        Self { solution, flow }
     }
 
     /// Joins `other` into this stream: flows add, totals and strong ions are flow-weighted
-    /// (see [`Solution::mix`]). The result keeps this stream's capacity `N`.
+    /// (see [`Solution::mix`]). The result keeps this stream's capacity `N`; a joined flow
+    /// above [`MAX_FLOW_L_PER_H`] is refused with both flows.
     pub fn join<const M: usize>(&self, other: &Stream<R, M>) -> Result<Self, CompositionError> {
-        let solution = self.solution.mix(self.flow_l_per_h, &other.solution, other.flow_l_per_h)?;
-        Self::new(solution, self.flow_l_per_h + other.flow_l_per_h)
+        let (a, b) = (self.flow.l_per_h(), other.flow.l_per_h());
+        let solution = self.solution.mix(a, &other.solution, b)?;
+        let flow = LitresPerHour::new(a + b)
+            .map_err(|_| CompositionError::InvalidFlow { first_l_per_h: a.to_f64(), second_l_per_h: b.to_f64() })?;
+        Ok(Self::new(solution, flow))
     }
 }
 
@@ -50,12 +44,13 @@ mod tests {
         a.add_formula("NaHCO3", 0.003).unwrap();
         let mut b: Solution<f64, 2> = Solution::standard();
         b.add_formula("NaOH", 0.5).unwrap();
-        let s = Stream::new(a, 900.0).unwrap().join(&Stream::new(b, 100.0).unwrap()).unwrap();
-        assert_eq!(s.flow_l_per_h, 1000.0);
+        let flow = |q: f64| LitresPerHour::new(q).unwrap();
+        let s = Stream::new(a, flow(900.0)).join(&Stream::new(b, flow(100.0))).unwrap();
+        assert_eq!(s.flow.l_per_h(), 1000.0);
         // mol/h in = mol/h out.
         assert!((s.solution.total_of("carbonate") * 1000.0 - 0.003 * 900.0).abs() < 1e-12);
         assert!((s.solution.strong_charge_eq_per_l() * 1000.0 - (0.003 * 900.0 + 0.5 * 100.0)).abs() < 1e-12);
-        assert!(Stream::new(Solution::<f64, 1>::standard(), -1.0).is_err());
-        assert!(Stream::new(Solution::<f64, 1>::standard(), f64::INFINITY).is_err());
+        let big = Stream::new(Solution::<f64, 1>::standard(), flow(9e6));
+        assert!(matches!(big.join(&big), Err(CompositionError::InvalidFlow { first_l_per_h: 9e6, .. })));
     }
 }

@@ -30,8 +30,8 @@ use phdose::control::feedforward::{DeadBands, Reagent};
 use phdose::control::regulator::{Regulator, RegulatorInputs, RegulatorMode, RegulatorSettings};
 use phdose::titration::alkalinity::{self, AcidPoint};
 use phdose::titration::fit::{self, Effective, FitSpec};
-use phdose::titration::{self, CurvePoint, DoseRequest, EquivalencePoint, Pump, Titration, stages};
-use phdose::units::Celsius;
+use phdose::titration::{self, CurvePoint, DoseRequest, EquivalencePoint, Titration, stages};
+use phdose::units::{Celsius, LitresPerHour};
 
 fn sink<R: Real>(x: R) {
     black_box(x);
@@ -65,12 +65,10 @@ fn dosing<R: Real>() -> Option<()> {
     influent.add_formula(black_box("H2SO4"), r::<R>(0.0012)).ok()?;
     let mut reagent: Solution<R, 1> = Solution::new(t, Activity::Davies);
     reagent.add_formula(black_box("NaOH"), r::<R>(7.96)).ok()?;
-    let request = DoseRequest {
-        setpoint_ph: r::<R>(7.0),
-        pump: Some(Pump { max_l_per_h: r::<R>(10.0), step_l_per_h: r::<R>(0.01) }),
-        band_ph: Some(r::<R>(0.3)),
-    };
-    let p = titration::plan(&influent, r::<R>(1200.0), &reagent, &request).ok()?;
+    let request = DoseRequest::checked(r::<R>(7.0), Some((r::<R>(10.0), r::<R>(0.01))), Some(r::<R>(0.3))).ok()?;
+    let flow = LitresPerHour::new(r::<R>(1200.0)).ok()?;
+    let p = titration::plan(&influent, flow, &reagent, &request).ok()?;
+    sink(p.resolution_ph);
     sink(p.reagent_flow_l_per_h);
     let a = alkalinity::alkalinity(&influent).ok()?;
     sink(a.total_eq_per_l);

@@ -1,7 +1,7 @@
 //! What `plan` is asked: influent, reagent, setpoint, pump and band, from JSON or flags.
 
-use phdose::titration::Pump;
-use phdose::titration::stream::MAX_FLOW_L_PER_H;
+use phdose::titration::{DoseRequest, Pump};
+use phdose::units::{InvalidInput, LitresPerHour, Quantity};
 use serde::Deserialize;
 
 use super::example;
@@ -85,47 +85,33 @@ struct PumpJson {
     step_l_per_h: f64,
 }
 
-fn positive(what: &str, v: f64) -> Result<f64, CliError> {
-    if v.is_finite() && v > 0.0 { Ok(v) } else { Err(CliError::new(format!("{what} {v} must be a number above 0"))) }
+/// The core's message for a value out of range, with the request field it came from.
+fn invalid(e: InvalidInput) -> CliError {
+    let field = match e.quantity {
+        Quantity::Ph => "setpoint_ph",
+        Quantity::PhWidth => "band_ph",
+        Quantity::PumpMax => "pump max_l_per_h",
+        Quantity::PumpStep => "pump step_l_per_h",
+        _ => "influent flow_l_per_h",
+    };
+    CliError::new(format!("{field}: {e}"))
 }
 
 impl PlanInput {
-    /// Checks the numbers the core would refuse with one generic message, so each gets its own.
+    /// Checks the numbers with the core's own checked types (one set of rules); the error
+    /// names the request field and the rejected value.
     pub fn new(
         conditions: Conditions,
         influent: Vec<Dissolved>,
         flow_l_per_h: f64,
         reagent: Reagent,
         setpoint_ph: f64,
-        pump: Option<Pump<f64>>,
+        pump: Option<(f64, f64)>,
         band_ph: Option<f64>,
     ) -> Result<Self, CliError> {
-        positive("influent flow_l_per_h", flow_l_per_h)?;
-        if flow_l_per_h > MAX_FLOW_L_PER_H {
-            return Err(CliError::new(format!(
-                "influent flow_l_per_h {flow_l_per_h} is above the {MAX_FLOW_L_PER_H} L/h limit"
-            )));
-        }
-        if !(setpoint_ph.is_finite() && (0.0..=14.0).contains(&setpoint_ph)) {
-            return Err(CliError::new(format!("setpoint_ph {setpoint_ph} must be within 0-14")));
-        }
-        if let Some(p) = pump {
-            positive("pump max_l_per_h", p.max_l_per_h)?;
-            positive("pump step_l_per_h", p.step_l_per_h)?;
-            if p.step_l_per_h > p.max_l_per_h {
-                return Err(CliError::new(format!(
-                    "pump step_l_per_h {} is larger than its max_l_per_h {}",
-                    p.step_l_per_h, p.max_l_per_h
-                )));
-            }
-        }
-        if let Some(b) = band_ph {
-            positive("band_ph", b)?;
-            if b > 14.0 {
-                return Err(CliError::new(format!("band_ph {b} is wider than the pH scale")));
-            }
-        }
-        Ok(Self { conditions, influent, flow_l_per_h, reagent, setpoint_ph, pump, band_ph })
+        LitresPerHour::new(flow_l_per_h).and_then(|f| f.positive(Quantity::InfluentFlow)).map_err(invalid)?;
+        let request = DoseRequest::checked(setpoint_ph, pump, band_ph).map_err(invalid)?;
+        Ok(Self { conditions, influent, flow_l_per_h, reagent, setpoint_ph, pump: request.pump, band_ph })
     }
 
     /// From the JSON request text.
@@ -134,7 +120,7 @@ impl PlanInput {
         let conditions = Conditions::new(r.temperature_c, r.activity.as_deref())?;
         let influent = composition::resolve(r.influent.dissolved.0, "influent")?;
         let reagent = Reagent::from_json(r.reagent, "reagent")?;
-        let pump = r.pump.map(|p| Pump { max_l_per_h: p.max_l_per_h, step_l_per_h: p.step_l_per_h });
+        let pump = r.pump.map(|p| (p.max_l_per_h, p.step_l_per_h));
         Self::new(conditions, influent, r.influent.flow_l_per_h, reagent, r.setpoint_ph, pump, r.band_ph)
     }
 
@@ -185,10 +171,10 @@ impl PlanInput {
         } else {
             let default = example.then_some(example::PUMP);
             match (num(PUMP_MAX)?, num(PUMP_STEP)?, default) {
-                (Some(m), Some(s), _) => Some(Pump { max_l_per_h: m, step_l_per_h: s }),
-                (Some(m), None, Some((_, s))) => Some(Pump { max_l_per_h: m, step_l_per_h: s }),
-                (None, Some(s), Some((m, _))) => Some(Pump { max_l_per_h: m, step_l_per_h: s }),
-                (None, None, Some((m, s))) => Some(Pump { max_l_per_h: m, step_l_per_h: s }),
+                (Some(m), Some(s), _) => Some((m, s)),
+                (Some(m), None, Some((_, s))) => Some((m, s)),
+                (None, Some(s), Some((m, _))) => Some((m, s)),
+                (None, None, Some((m, s))) => Some((m, s)),
                 (None, None, None) => None,
                 _ => {
                     return Err(CliError::new(

@@ -49,6 +49,7 @@ struct Output {
 enum CheckOut {
     BeyondPump { needed_l_per_h: Num, max_l_per_h: Num },
     TooSteep { step_delta_ph: Num, band_ph: Num, dilute_reagent_by: Num, nearest_controllable_setpoint_ph: Option<Num> },
+    ResolutionLimited { resolution_ph: Num, needed_ph: Num },
 }
 
 #[derive(Serialize)]
@@ -56,6 +57,7 @@ enum CheckOut {
 enum UnreachableOut {
     WrongDirection,
     BeyondReagent { limit_ph: Num },
+    BeyondActivityModel { ionic_strength_mol_per_l: Num },
 }
 
 #[derive(Serialize)]
@@ -112,6 +114,9 @@ pub fn render(r: &PlanReport) -> Result<String, CliError> {
                             dilute_reagent_by: Num(dilute_reagent_by),
                             nearest_controllable_setpoint_ph: opt(nearest_controllable_setpoint_ph),
                         },
+                        DoseCheck::ResolutionLimited { resolution_ph, needed_ph } => {
+                            CheckOut::ResolutionLimited { resolution_ph: Num(resolution_ph), needed_ph: Num(needed_ph) }
+                        }
                     })
                     .collect()
             })
@@ -119,6 +124,9 @@ pub fn render(r: &PlanReport) -> Result<String, CliError> {
         unreachable: r.unreachable.map(|u| match u {
             Unreachable::WrongDirection => UnreachableOut::WrongDirection,
             Unreachable::BeyondReagent { limit_ph } => UnreachableOut::BeyondReagent { limit_ph: Num(limit_ph) },
+            Unreachable::BeyondActivityModel { ionic_strength_mol_per_l } => {
+                UnreachableOut::BeyondActivityModel { ionic_strength_mol_per_l: Num(ionic_strength_mol_per_l) }
+            }
         }),
         stage_advice: r.stages.map(|s| StagesOut {
             stages: s.stages,
@@ -127,7 +135,7 @@ pub fn render(r: &PlanReport) -> Result<String, CliError> {
             both_directions: s.both_directions,
             basis: STAGE_BASIS,
         }),
-        pump: i.pump.map(|p| PumpOut { max_l_per_h: Num(p.max_l_per_h), step_l_per_h: Num(p.step_l_per_h) }),
+        pump: i.pump.map(|p| PumpOut { max_l_per_h: Num(p.max_l_per_h()), step_l_per_h: Num(p.step_l_per_h()) }),
         band_ph: opt(i.band_ph),
         temperature_c: Num(i.conditions.celsius()),
         activity: i.conditions.activity_name(),

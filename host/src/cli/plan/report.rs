@@ -2,6 +2,7 @@
 
 use phdose::titration::stages::{self, StageAdvice};
 use phdose::titration::{DoseCheck, DoseError, DosePlan, DoseRequest, dose};
+use phdose::units::LitresPerHour;
 
 use super::input::PlanInput;
 use crate::cli::CliError;
@@ -17,6 +18,11 @@ pub enum Unreachable {
     BeyondReagent {
         /// The pH an unlimited dose approaches.
         limit_ph: f64,
+    },
+    /// The mixture at the setpoint is beyond the activity model's ionic-strength range.
+    BeyondActivityModel {
+        /// The ionic strength it would need, mol/L.
+        ionic_strength_mol_per_l: f64,
     },
 }
 
@@ -64,6 +70,11 @@ pub fn check_verdict(check: &DoseCheck<f64>, setpoint_ph: f64) -> String {
                 ),
             }
         }
+        DoseCheck::ResolutionLimited { resolution_ph, needed_ph } => format!(
+            "resolution-limited: the working precision places the mixture's pH only to {} pH, more than the {} pH the plan needs",
+            sig(resolution_ph, 2),
+            sig(needed_ph, 2)
+        ),
     }
 }
 
@@ -74,10 +85,14 @@ pub fn compute(input: PlanInput) -> Result<PlanReport, CliError> {
     let influent: HostSolution = composition::solution(c, &input.influent, "influent")?;
     let reagent = input.reagent.solution(c, "reagent")?;
     let influent_eq = influent.solve().map_err(|e| CliError::new(format!("influent: pH solver: {e}")))?;
-    let request = DoseRequest { setpoint_ph: input.setpoint_ph, pump: input.pump, band_ph: input.band_ph };
+    // The input was checked by `PlanInput::new` with the same constructors: these cannot fail.
+    let request =
+        DoseRequest::checked(input.setpoint_ph, input.pump.map(|p| (p.max_l_per_h(), p.step_l_per_h())), input.band_ph)
+            .map_err(|e| CliError::new(format!("plan request: {e}")))?;
+    let flow = LitresPerHour::new(input.flow_l_per_h).map_err(|e| CliError::new(format!("influent: {e}")))?;
 
     let mut verdicts = Vec::new();
-    let (plan, unreachable) = match dose::plan(&influent, input.flow_l_per_h, &reagent, &request) {
+    let (plan, unreachable) = match dose::plan(&influent, flow, &reagent, &request) {
         Ok(p) => {
             verdicts.extend(p.checks.iter().map(|k| check_verdict(k, input.setpoint_ph)));
             if verdicts.is_empty() {
@@ -85,10 +100,17 @@ pub fn compute(input: PlanInput) -> Result<PlanReport, CliError> {
             }
             (Some(p), None)
         }
-        Err(e @ (DoseError::WrongDirection { .. } | DoseError::BeyondReagent { .. })) => {
+        Err(
+            e @ (DoseError::WrongDirection { .. }
+            | DoseError::BeyondReagent { .. }
+            | DoseError::BeyondActivityModel { .. }),
+        ) => {
             verdicts.push(e.to_string());
             let why = match e {
                 DoseError::BeyondReagent { limit_ph, .. } => Unreachable::BeyondReagent { limit_ph },
+                DoseError::BeyondActivityModel { ionic_strength_mol_per_l, .. } => {
+                    Unreachable::BeyondActivityModel { ionic_strength_mol_per_l }
+                }
                 _ => Unreachable::WrongDirection,
             };
             (None, Some(why))

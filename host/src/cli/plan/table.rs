@@ -30,7 +30,7 @@ pub fn render(r: &PlanReport, title: Option<&str>) -> String {
     let _ = writeln!(s, "{:<LABEL$}pH {}, {band}", "setpoint", fixed(i.setpoint_ph, 2));
     let pump = i.pump.map_or_else(
         || "not given".to_owned(),
-        |p| format!("max {} L/h, step {} L/h", sig(p.max_l_per_h, 4), sig(p.step_l_per_h, 3)),
+        |p| format!("max {} L/h, step {} L/h", sig(p.max_l_per_h(), 4), sig(p.step_l_per_h(), 3)),
     );
     let _ = writeln!(s, "{:<LABEL$}{pump}", "pump");
     let _ = writeln!(s);
@@ -40,7 +40,7 @@ pub fn render(r: &PlanReport, title: Option<&str>) -> String {
             let share = i
                 .pump
                 .map(|pump| {
-                    format!("   ({:.1} % of the pump's max)", 100.0 * p.reagent_flow_l_per_h / pump.max_l_per_h)
+                    format!("   ({:.1} % of the pump's max)", 100.0 * p.reagent_flow_l_per_h / pump.max_l_per_h())
                 })
                 .unwrap_or_default();
             let _ = writeln!(s, "{:<LABEL$}{} L/h{share}", "reagent flow", sig(p.reagent_flow_l_per_h, 4));
