@@ -86,10 +86,14 @@ do_fuzz() {
 }
 
 do_test() {
-    step "tests (workspace)"
-    cargo test --workspace
-    step "tests (core with fast-math: f32 precision bound for micromath)"
-    cargo test -p phdose --features fast-math
+    # The core is tested as it ships: no default features, each feature set on its own (the
+    # host crate is a separate `cargo test -p`, so its dependencies cannot switch anything on).
+    for f in "${CORE_FEATURES[@]}"; do
+        step "tests phdose --no-default-features features=[$f]"
+        cargo test -p phdose --no-default-features --features "$f"
+    done
+    step "tests phdose-host (CLI)"
+    cargo test -p phdose-host
 }
 
 case "${1:-all}" in

@@ -1,7 +1,7 @@
 //! The real-number abstraction: the chemistry runs in `f32` (MCU with a single-precision
 //! FPU) and `f64` (host) from the same code.
 //!
-//! Only what the solver needs is here. `f64` uses `libm` (or `std` with the `std` feature);
+//! Only what the solver needs is here. `f64` uses `libm` (on every target, host included);
 //! `f32` uses `libm` by default and `micromath` with the `fast-math` feature. The pH error of
 //! each choice against `f64` is measured by `tests/precision.rs` and stated in the README.
 
@@ -188,35 +188,10 @@ impl Real for f32 {
     }
 }
 
-/// `f64` functions: `libm` in `no_std`, the platform's (via `std`) with the `std` feature.
-#[cfg(not(feature = "std"))]
+/// `f64` functions: always `libm`, on the host as on a board, so the host runs the same maths
+/// as the firmware (there is no `std` feature that swaps them).
 mod f64_math {
     pub use libm::{exp, exp10, log as ln, log10, sqrt};
-}
-
-#[cfg(feature = "std")]
-mod f64_math {
-    #[inline]
-    pub fn exp10(x: f64) -> f64 {
-        // 10^x; std has no exp10. powf is correctly rounded to within 1 ulp on glibc.
-        10f64.powf(x)
-    }
-    #[inline]
-    pub fn log10(x: f64) -> f64 {
-        x.log10()
-    }
-    #[inline]
-    pub fn ln(x: f64) -> f64 {
-        x.ln()
-    }
-    #[inline]
-    pub fn exp(x: f64) -> f64 {
-        x.exp()
-    }
-    #[inline]
-    pub fn sqrt(x: f64) -> f64 {
-        x.sqrt()
-    }
 }
 
 #[cfg(not(feature = "fast-math"))]
