@@ -4,9 +4,10 @@
 //! Library code may not index a slice (`clippy::indexing_slicing` is denied: an out-of-bounds
 //! index panics). Where an index is in bounds by construction (a loop over a fixed-size matrix,
 //! a component slot the same function just filled), [`at`] reads it and [`set`] writes it (and
-//! [`at2`] / [`set2`] for a row-major matrix). In debug and test builds a broken invariant fails
-//! the test at once (`debug_assert!`); in release builds, which the link-time no-panic proof
-//! covers, a read returns `T::default()` and a write is dropped instead of panicking.
+//! [`at2`] / [`set2`] for a row-major matrix); where a library call would panic on a broken
+//! invariant, [`holds`] guards it. In debug and test builds a broken invariant fails the test at
+//! once (`debug_assert!`); in release builds, which the link-time no-panic proof covers, a read
+//! returns `T::default()`, a write is dropped and a guard returns `false` instead of panicking.
 //! Everything that can fail for a *caller's* reason returns a typed error instead; this module
 //! is only for the crate's own invariants.
 
@@ -42,6 +43,14 @@ pub(crate) fn set2<T, const C: usize>(matrix: &mut [[T; C]], row: usize, col: us
     }
 }
 
+/// `condition`, asserted in debug and test builds; the caller skips the guarded call when it is
+/// `false` (only in a release build with a broken invariant).
+#[inline]
+pub(crate) fn holds(condition: bool, invariant: &str) -> bool {
+    debug_assert!(condition, "invariant broken: {invariant}");
+    condition
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -56,6 +65,14 @@ mod tests {
         assert_eq!(at2(&m, 2, 1), 6.0);
         set2(&mut m, 1, 0, 7.0);
         assert_eq!(m, [[1.0, 2.0], [7.0, 4.0], [5.0, 6.0]]);
+        assert!(holds(m.len() == 3, "three rows"));
+    }
+
+    #[test]
+    #[cfg(debug_assertions)]
+    #[should_panic(expected = "invariant broken: two rows")]
+    fn a_broken_guard_fails_loudly_in_tests() {
+        let _ = holds([0; 3].len() == 2, "two rows");
     }
 
     #[test]
@@ -99,5 +116,6 @@ mod tests {
         set2(&mut m, 2, 0, 3.0);
         set2(&mut m, 0, 2, 3.0);
         assert_eq!(m, [[1.0; 2]; 2]);
+        assert!(!holds(m.len() == 3, "three rows"));
     }
 }
