@@ -5,11 +5,13 @@
 //! phosphate, neutralised with 25 % caustic).
 #![allow(clippy::unwrap_used, clippy::expect_used, clippy::indexing_slicing, clippy::panic)]
 
-use phdose::chem::{Activity, Solution};
+use phdose::chem::{Activity, CompositionError, Solution};
 use phdose::control::adapt::AdaptSettings;
 use phdose::control::feedback::PiTuning;
-use phdose::control::feedforward::{DeadBands, Reagent, ReagentSide};
-use phdose::control::regulator::{Regulator, RegulatorInputs, RegulatorMode, RegulatorOutput, RegulatorSettings};
+use phdose::control::feedforward::{DeadBands, ModelError, Reagent, ReagentSide};
+use phdose::control::regulator::{
+    Regulator, RegulatorError, RegulatorInputs, RegulatorMode, RegulatorOutput, RegulatorSettings,
+};
 use phdose::titration::reagent::mol_per_l_of;
 use phdose::units::Celsius;
 
@@ -294,6 +296,35 @@ fn a_pump_that_delivers_nothing_raises_the_residual_warning() {
     assert!(reg.adaptation().warning());
     // Adaptation never left its bound.
     assert!(reg.adaptation().correction_eq_per_l().abs() <= reg.correction_bound_eq_per_l());
+}
+
+/// Acidic rinse water with carbonate as its only system, in a solution of capacity `N`.
+fn acidic_rinse<const N: usize>() -> Solution<f64, N> {
+    let mut s = Solution::new(Celsius::new(T_C).unwrap(), Activity::Ideal);
+    s.add_formula("NaHCO3", 0.0015).unwrap();
+    s.add_formula("HCl", 0.002).unwrap();
+    s
+}
+
+#[test]
+fn a_capacity_too_small_for_the_idle_reagent_is_refused_at_construction() {
+    // The rinse water is neutralised with caustic; the idle acid pump carries sulfuric acid,
+    // whose sulfate system reaches the tank only after a switch to the acid.
+    let mut acid = Solution::new(Celsius::new(T_C).unwrap(), Activity::Ideal);
+    acid.add_formula("H2SO4", 1.0).unwrap();
+    let caustic_pump = || Some(Reagent { solution: caustic(Activity::Ideal), max_l_per_h: 3.0 });
+    let acid_pump = Some(Reagent { solution: acid, max_l_per_h: 3.0 });
+    let refused = Regulator::new(settings(7.5, 0.5), acidic_rinse::<1>(), caustic_pump(), acid_pump.clone(), 1200.0);
+    assert_eq!(
+        refused.map(|r| r.active()),
+        Err(RegulatorError::Model(ModelError::Composition(CompositionError::CapacityExceeded { capacity: 1 })))
+    );
+    // The design point itself needs only the caustic: without the idle acid, N = 1 is enough.
+    let caustic_only = Regulator::new(settings(7.5, 0.5), acidic_rinse::<1>(), caustic_pump(), None, 1200.0);
+    assert_eq!(caustic_only.map(|r| r.active()), Ok(ReagentSide::Caustic));
+    // Room for both: accepted, caustic active.
+    let roomy = Regulator::new(settings(7.5, 0.5), acidic_rinse::<2>(), caustic_pump(), acid_pump, 1200.0);
+    assert_eq!(roomy.map(|r| r.active()), Ok(ReagentSide::Caustic));
 }
 
 #[test]

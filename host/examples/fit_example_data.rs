@@ -64,7 +64,7 @@ fn main() -> Result<(), Box<dyn Error>> {
         carbonate_mol_per_l: CARBONATE_MOL_PER_L,
         buffers: [BUFFER, (0.0, 7.0)],
     };
-    let sample: Solution<f64, 4> = truth.solution(t, Activity::Davies);
+    let sample: Solution<f64, 4> = truth.solution(t, Activity::Davies)?;
     let mut titrant: Solution<f64, 1> = Solution::new(t, Activity::Davies);
     titrant.add_formula("NaOH", TITRANT_MOL_PER_L)?;
     let mut noise = Noise(SEED);

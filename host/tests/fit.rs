@@ -78,7 +78,7 @@ fn the_data_file_is_what_its_header_says() {
         carbonate_mol_per_l: CARBONATE_MMOL_PER_L * 1e-3,
         buffers: [(BUFFER_MMOL_PER_L * 1e-3, BUFFER_PKA), (0.0, 7.0)],
     };
-    let sample: Solution<f64, 4> = truth.solution(t, Activity::Davies);
+    let sample: Solution<f64, 4> = truth.solution(t, Activity::Davies).unwrap();
     let mut naoh: Solution<f64, 1> = Solution::new(t, Activity::Davies);
     naoh.add_formula("NaOH", 0.05).unwrap();
     let points = data_points(&csv);

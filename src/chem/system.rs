@@ -9,6 +9,13 @@ use crate::real::Real;
 /// Most dissociation steps one system may have.
 pub const MAX_STEPS: usize = 3;
 
+/// [`MAX_STEPS`] as a `u8`, for step numbers counted exactly in `u8` (the cast is checked at
+/// compile time).
+pub(crate) const MAX_STEPS_U8: u8 = {
+    assert!(MAX_STEPS <= u8::MAX as usize, "step numbers are u8");
+    MAX_STEPS as u8
+};
+
 /// Gas constant, J/(mol·K) (CODATA 2018 exact value).
 pub const GAS_CONSTANT_J_PER_MOL_K: f64 = 8.314_462_618;
 /// Reference temperature of the van 't Hoff form, K (25 °C).
@@ -149,7 +156,8 @@ impl AcidBaseSystem {
     /// system's cations, e.g. "NH3" for ammonium. Only meaningful when the fully protonated
     /// form is a cation.
     pub fn parent_base(&self) -> &'static str {
-        let z0 = usize::try_from(i32::from(self.charge_protonated).max(0)).unwrap_or(0);
+        // max(0) then unsigned_abs: exact, a charge below zero counts as 0.
+        let z0 = usize::from(self.charge_protonated.max(0).unsigned_abs());
         self.form(z0.min(self.step_count()))
     }
 }
@@ -187,5 +195,24 @@ mod tests {
     fn parent_base_of_ammonium_is_ammonia() {
         assert_eq!(crate::chem::catalogue::AMMONIUM.parent_base(), "NH3");
         assert_eq!(crate::chem::catalogue::AMMONIUM.pka(2, 298.15_f64), None);
+    }
+
+    #[test]
+    fn parent_base_takes_the_form_of_charge_zero_or_the_fully_protonated_one() {
+        // A doubly charged cation system (invented: H2X²⁺ / HX⁺ / X): the parent base is form 2.
+        let mut s = crate::chem::catalogue::AMMONIUM;
+        s.forms = ["H2X+2", "HX+", "X", ""];
+        s.steps = 2;
+        s.charge_protonated = 2;
+        assert_eq!(s.parent_base(), "X");
+        // Charge above the step count: the last form.
+        s.charge_protonated = 3;
+        assert_eq!(s.parent_base(), "X");
+        // Neutral or anionic fully protonated forms: form 0 (no negative index, no fallback).
+        s.charge_protonated = 0;
+        assert_eq!(s.parent_base(), "H2X+2");
+        s.charge_protonated = -1;
+        assert_eq!(s.parent_base(), "H2X+2");
+        assert_eq!(usize::from(MAX_STEPS_U8), MAX_STEPS);
     }
 }

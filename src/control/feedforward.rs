@@ -36,6 +36,25 @@ impl ReagentSide {
         }
     }
 
+    /// This side's entry of a two-slot array (caustic first, as [`ReagentSide::index`]):
+    /// exact by construction, no index to check.
+    pub(crate) fn of<T>(self, pair: &[T; 2]) -> &T {
+        let [caustic, acid] = pair;
+        match self {
+            Self::Caustic => caustic,
+            Self::Acid => acid,
+        }
+    }
+
+    /// [`ReagentSide::of`], mutable.
+    pub(crate) fn of_mut<T>(self, pair: &mut [T; 2]) -> &mut T {
+        let [caustic, acid] = pair;
+        match self {
+            Self::Caustic => caustic,
+            Self::Acid => acid,
+        }
+    }
+
     /// The other side.
     pub fn other(self) -> Self {
         match self {
@@ -124,7 +143,7 @@ pub fn adapted_influent<R: Real, const N: usize>(
 /// [`crate::titration::dose::MAX_DOSE_ROUNDS`] × two charge-balance evaluations; no pump or
 /// band checks — those belong to the boot checks).
 ///
-/// `N2` is the capacity of the mixture (influent plus reagent systems).
+/// `N` is the capacity of the mixture too (influent plus reagent systems).
 pub fn compute<R: Real, const N: usize>(
     adapted: &Solution<R, N>,
     influent_flow_l_per_h: R,

@@ -207,6 +207,15 @@ impl<R: Real, const N: usize> Regulator<R, N> {
         // Influent excess > 0 at the setpoint means its own pH is above it: acid needed.
         let wanted = if g_in > R::ZERO { ReagentSide::Acid } else { ReagentSide::Caustic };
         let reagents = [caustic, acid];
+        // `N` must hold the tank: the influent's systems plus both reagents' (a tick mixes in the
+        // pump that runs; the idle one's systems arrive only after a switch). Mixing them all
+        // once here makes too small an `N` a refusal now, not a model error on every tick after
+        // the first switch. At most two mixes.
+        reagents
+            .iter()
+            .flatten()
+            .try_fold(influent.clone(), |tank, r| tank.mix(R::ONE, &r.solution, R::ONE))
+            .map_err(|e| RegulatorError::Model(ModelError::Composition(e)))?;
         let active = match (&reagents[0], &reagents[1]) {
             (None, None) => return Err(RegulatorError::NoReagent),
             (Some(_), None) => ReagentSide::Caustic,
@@ -261,7 +270,7 @@ impl<R: Real, const N: usize> Regulator<R, N> {
     }
 
     fn reagent(&self, side: ReagentSide) -> Option<&Reagent<R>> {
-        self.reagents.get(side.index()).and_then(Option::as_ref)
+        side.of(&self.reagents).as_ref()
     }
 
     /// Recomputes the feed-forward at `flow` and `temperature` with the current correction,
@@ -349,9 +358,7 @@ impl<R: Real, const N: usize> Regulator<R, N> {
         match inputs.mode {
             RegulatorMode::Auto if ph_ok && flow > R::ZERO && dt > R::ZERO => {
                 let out = self.pi.step(&self.settings.pi, dt, ff_flow, error_q, error_ph, max);
-                if let Some(d) = demand.get_mut(side.index()) {
-                    *d = out.flow_l_per_h;
-                }
+                *side.of_mut(&mut demand) = out.flow_l_per_h;
                 trim = out.trim_l_per_h;
                 sched = out.scheduled_gain_l_per_h_per_ph;
                 saturated = out.saturated_high;
@@ -360,9 +367,7 @@ impl<R: Real, const N: usize> Regulator<R, N> {
             RegulatorMode::Manual { side: ms, flow_l_per_h } => {
                 let m = self.reagent(ms).map_or(R::ZERO, |r| r.max_l_per_h);
                 let q = if flow_l_per_h.is_finite() { flow_l_per_h.max(R::ZERO).min(m) } else { R::ZERO };
-                if let Some(d) = demand.get_mut(ms.index()) {
-                    *d = q;
-                }
+                *ms.of_mut(&mut demand) = q;
                 let tracked = if ms == side { q } else { R::ZERO };
                 self.pi.track(&self.settings.pi, ff_flow, error_q, tracked);
             }

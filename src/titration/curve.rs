@@ -3,7 +3,9 @@
 
 use heapless::Vec;
 
+use crate::chem::system::MAX_STEPS_U8;
 use crate::chem::{CompositionError, Equilibrium, Solution, SolveError};
+use crate::invariant::holds;
 use crate::real::Real;
 
 /// A local slope maximum counts as an inflection when it is at least this many times steeper
@@ -138,20 +140,26 @@ impl<R: Real, const N: usize, const M: usize> Titration<'_, R, N, M> {
             let (lo_ph, hi_ph) =
                 out.iter().fold((R::from_f64(99.0), R::from_f64(-99.0)), |(a, b), p| (a.min(p.ph), b.max(p.ph)));
             let span = (hi_ph - lo_ph).max(R::from_f64(1e-3));
-            let mut best: Option<(usize, R)> = None;
+            // The longest segment: its left index, length, midpoint titrant and left pH (taken
+            // from the window itself, so no index is read back).
+            let mut best: Option<(usize, R, R, R)> = None;
             for (i, w) in out.windows(2).enumerate() {
                 if let [a, b] = w {
                     let dv = (b.titrant_l - a.titrant_l) / max_titrant_l;
                     let dp = (b.ph - a.ph) / span;
                     let len = dv * dv + dp * dp;
-                    if best.is_none_or(|(_, l)| len > l) {
-                        best = Some((i, len));
+                    if best.is_none_or(|(_, l, _, _)| len > l) {
+                        best = Some((i, len, (a.titrant_l + b.titrant_l) * R::from_f64(0.5), a.ph));
                     }
                 }
             }
-            let Some((i, _)) = best else { break };
-            let (Some(a), Some(b)) = (out.get(i).copied(), out.get(i + 1).copied()) else { break };
-            let p = self.point((a.titrant_l + b.titrant_l) * R::from_f64(0.5), Some(a.ph))?;
+            let Some((i, _, v, left_ph)) = best else { break };
+            // `i` is a window's left index, so i + 1 < len (the guard lets the optimiser see
+            // that `insert` cannot panic); len < points ≤ K, so there is room.
+            if !holds(i + 1 < out.len(), "segment index inside the curve") {
+                break;
+            }
+            let p = self.point(v, Some(left_ph))?;
             out.insert(i + 1, p).map_err(|_| CurveError::InvalidRange)?;
         }
         Ok(())
@@ -161,7 +169,8 @@ impl<R: Real, const N: usize, const M: usize> Titration<'_, R, N, M> {
     /// own acid–base systems are not counted). Level 0 has every system fully protonated; then
     /// each system step, taken in order of pKa, is a further stoichiometric level; the titrant volume that reaches it is where the strong-ion charge
     /// balances the systems' charges with every lower-pKa step completed. Points within
-    /// (0, `max_titrant_l`] are returned with their pH (solved). At most 3·N levels.
+    /// (0, `max_titrant_l`] are returned with their pH (solved); `out` keeps the first `E`. At
+    /// most 3·N levels.
     pub fn model_equivalence_points<const E: usize>(
         &self,
         max_titrant_l: R,
@@ -177,26 +186,27 @@ impl<R: Real, const N: usize, const M: usize> Titration<'_, R, N, M> {
         let comps = self.sample.components();
         let base_titrant = ct > R::ZERO;
         // The next step above `last` in (pKa, component, step) order: one scan of ≤ 3·N steps.
-        let next_step = |last: Option<(R, usize, usize)>| {
-            let mut next: Option<(R, usize, usize)> = None;
+        // Steps are counted in u8 alongside each component's cached pKa (at most MAX_STEPS per
+        // component), so the step number is exact and nothing is looked up again.
+        let next_step = |last: Option<Level<R>>| {
+            let mut next: Option<Level<R>> = None;
             for (ci, c) in comps.iter().enumerate() {
-                for step in 1..=c.system.step_count() {
-                    let Some(pk) = self.sample.component_pka(ci, step) else { continue };
-                    let after_last = last.is_none_or(|(lp, lc, ls)| pk > lp || (pk == lp && (ci, step) > (lc, ls)));
-                    let before_next = next.is_none_or(|(np, nc, ns)| pk < np || (pk == np && (ci, step) < (nc, ns)));
-                    if after_last && before_next {
-                        next = Some((pk, ci, step));
+                for (step, pk) in (1..=MAX_STEPS_U8).zip(c.pk).take(c.system.step_count()) {
+                    let key = (pk, ci, step);
+                    if last.is_none_or(|l| key.gt(&l.order())) && next.is_none_or(|n| key.lt(&n.order())) {
+                        next = Some(Level {
+                            pk,
+                            component: ci,
+                            step,
+                            key: c.system.key,
+                            total_mol_per_l: c.total_mol_per_l,
+                        });
                     }
                 }
             }
             next
         };
-        let label = |s: Option<(R, usize, usize)>| -> (&'static str, u8) {
-            match s.and_then(|(_, ci, step)| comps.get(ci).map(|c| (c.system.key, step))) {
-                Some((key, step)) => (key, u8::try_from(step).unwrap_or(u8::MAX)),
-                None => ("strong", 0),
-            }
-        };
+        let label = |s: Option<Level<R>>| -> (&'static str, u8) { s.map_or(("strong", 0), |l| (l.key, l.step)) };
         // Level k: the k lowest-pKa steps deprotonated, the rest protonated. Its charge (eq) z_k
         // starts with every system fully protonated and loses one proton per formula unit of the
         // step completed. The titrant charge ct·v cancels it at v = −z_k/ct. A base titrant
@@ -207,7 +217,7 @@ impl<R: Real, const N: usize, const M: usize> Titration<'_, R, N, M> {
         for c in comps {
             z += R::from_i32(c.system.charge_of_form(0)) * c.total_mol_per_l * v0;
         }
-        let mut previous: Option<(R, usize, usize)> = None;
+        let mut previous: Option<Level<R>> = None;
         let mut near = None;
         for _ in 0..=(3 * comps.len()) {
             let upcoming = next_step(previous);
@@ -220,9 +230,8 @@ impl<R: Real, const N: usize, const M: usize> Titration<'_, R, N, M> {
                     break;
                 }
             }
-            let Some((_, ci, _)) = upcoming else { break };
-            let Some(c) = comps.get(ci) else { break };
-            z -= c.total_mol_per_l * v0;
+            let Some(level) = upcoming else { break };
+            z -= level.total_mol_per_l * v0;
             previous = upcoming;
         }
         // An acid titrant meets the levels from the top down: report them in titrant order.
@@ -230,6 +239,23 @@ impl<R: Real, const N: usize, const M: usize> Titration<'_, R, N, M> {
             out.reverse();
         }
         Ok(())
+    }
+}
+
+/// One system step as a stoichiometric level of [`Titration::model_equivalence_points`].
+#[derive(Clone, Copy)]
+struct Level<R> {
+    pk: R,
+    component: usize,
+    step: u8,
+    key: &'static str,
+    total_mol_per_l: R,
+}
+
+impl<R: Real> Level<R> {
+    /// The order levels are taken in: pKa, then component, then step.
+    fn order(&self) -> (R, usize, u8) {
+        (self.pk, self.component, self.step)
     }
 }
 

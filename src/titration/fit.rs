@@ -7,7 +7,8 @@
 //! fitted as log10 (so they stay positive), pKa within [`PKA_RANGE`]. Residuals are in pH.
 
 use crate::chem::system::{AcidBaseSystem, LogK};
-use crate::chem::{Activity, Solution, catalogue};
+use crate::chem::{Activity, CompositionError, Solution, catalogue};
+use crate::invariant::{at, at2, set, set2};
 use crate::real::Real;
 use crate::units::Celsius;
 
@@ -25,6 +26,10 @@ pub const MAX_STANDARD_ERROR_LOG: f64 = 0.5;
 
 /// The generic buffer systems a fit may use (monoprotic HA / A⁻, pKa set by the fit).
 pub const BUFFER_KEYS: [&str; 2] = ["fitted-buffer-a", "fitted-buffer-b"];
+
+/// Acid–base systems an [`Effective`] composition can hold: carbonate and the buffers of
+/// [`BUFFER_KEYS`]. [`Effective::solution`] needs at least this capacity.
+pub const FITTED_SYSTEMS: usize = 1 + BUFFER_KEYS.len();
 
 /// What to fit.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -55,29 +60,73 @@ pub struct Effective<R: Real> {
 }
 
 impl<R: Real> Effective<R> {
-    /// The composition as a solution at `temperature` (buffers taken with ΔH° = 0). `N` ≥ 3
-    /// holds every fitted system; extra room is for what is mixed in later (a titrant).
-    pub fn solution<const N: usize>(&self, temperature: Celsius<R>, activity: Activity) -> Solution<R, N> {
+    /// The composition as a solution at `temperature` (buffers taken with ΔH° = 0). Zero totals
+    /// are left out. `N` ≥ [`FITTED_SYSTEMS`] holds every fitted system (checked at compile
+    /// time, so the capacity cannot run out); extra room is for what is mixed in later (a
+    /// titrant).
+    ///
+    /// ```
+    /// use phdose::chem::{Activity, Solution};
+    /// use phdose::titration::fit::Effective;
+    /// use phdose::units::Celsius;
+    /// let e = Effective { strong_charge_eq_per_l: 1e-3, carbonate_mol_per_l: 1e-3, buffers: [(1e-4, 7.0), (1e-4, 9.0)] };
+    /// let s: Solution<f64, 3> = e.solution(Celsius::new(20.0).unwrap(), Activity::Ideal).unwrap();
+    /// assert_eq!(s.components().len(), 3);
+    /// ```
+    /// Too small a capacity does not compile:
+    /// ```compile_fail
+    /// use phdose::chem::{Activity, Solution};
+    /// use phdose::titration::fit::Effective;
+    /// use phdose::units::Celsius;
+    /// let e = Effective { strong_charge_eq_per_l: 1e-3, carbonate_mol_per_l: 1e-3, buffers: [(1e-4, 7.0), (1e-4, 9.0)] };
+    /// let s: Solution<f64, 2> = e.solution(Celsius::new(20.0).unwrap(), Activity::Ideal).unwrap();
+    /// ```
+    ///
+    /// # Errors
+    /// [`CompositionError::NonFinite`] for a value that is not a finite number,
+    /// [`CompositionError::Negative`] for a negative total, [`CompositionError::TooConcentrated`]
+    /// beyond the solution's limits and [`CompositionError::InvalidSystem`] for a buffer whose
+    /// pKa is not finite: an effective composition is caller data (a fit's result is always
+    /// accepted).
+    pub fn solution<const N: usize>(
+        &self,
+        temperature: Celsius<R>,
+        activity: Activity,
+    ) -> Result<Solution<R, N>, CompositionError> {
+        const { assert!(N >= FITTED_SYSTEMS, "an effective composition needs room for carbonate and both buffers") };
         let mut s = Solution::new(temperature, activity);
         let q = self.strong_charge_eq_per_l;
-        // Errors here mean a non-finite or absurd value: the fit's bounds prevent them.
-        let _ = if q >= R::ZERO { s.add_strong_ion(1, q) } else { s.add_strong_ion(-1, -q) };
-        if self.carbonate_mol_per_l > R::ZERO {
-            let _ = s.add_system(&catalogue::CARBONATE, self.carbonate_mol_per_l);
+        if q >= R::ZERO {
+            s.add_strong_ion(1, q)?;
+        } else {
+            // Negative, or NaN (refused as not finite).
+            s.add_strong_ion(-1, -q)?;
         }
-        for (i, (total, pka)) in self.buffers.iter().enumerate() {
-            if *total > R::ZERO {
-                let _ = s.add_system(&buffer_system(i, pka.to_f64()), *total);
+        // `!= 0` rather than `> 0`: a NaN or negative total is refused, not left out.
+        if self.carbonate_mol_per_l != R::ZERO {
+            s.add_system(&catalogue::CARBONATE, self.carbonate_mol_per_l)?;
+        }
+        let [(total_a, pka_a), (total_b, pka_b)] = self.buffers;
+        let [key_a, key_b] = BUFFER_KEYS;
+        // Two iterations.
+        for (key, total, pka) in [(key_a, total_a, pka_a), (key_b, total_b, pka_b)] {
+            if total != R::ZERO {
+                s.add_system(&keyed_buffer(key, pka.to_f64()), total)?;
             }
         }
-        s
+        Ok(s)
     }
 }
 
-/// A generic monoprotic buffer (HA/A⁻) with the given pKa at 25 °C and ΔH° = 0.
-pub fn buffer_system(index: usize, pka: f64) -> AcidBaseSystem {
+/// The generic monoprotic buffer (HA/A⁻) of fitted buffer `index` (keyed by [`BUFFER_KEYS`])
+/// with the given pKa at 25 °C and ΔH° = 0; `None` for an index past [`BUFFER_KEYS`].
+pub fn buffer_system(index: usize, pka: f64) -> Option<AcidBaseSystem> {
+    BUFFER_KEYS.get(index).map(|key| keyed_buffer(key, pka))
+}
+
+fn keyed_buffer(key: &'static str, pka: f64) -> AcidBaseSystem {
     AcidBaseSystem {
-        key: BUFFER_KEYS.get(index).copied().unwrap_or("fitted-buffer"),
+        key,
         forms: ["HA", "A-", "", ""],
         steps: 1,
         log_k: [
@@ -119,7 +168,8 @@ pub enum FitError {
         /// Which parameter: "strong charge", "carbonate", "buffer a total", "buffer a pKa" …
         parameter: &'static str,
     },
-    /// The model could not be evaluated at some point (a solve failed).
+    /// The model could not be evaluated at some point (the composition could not be built, or a
+    /// mix or solve failed).
     ModelFailed,
 }
 
@@ -159,13 +209,20 @@ impl Layout {
 }
 
 fn to_effective<R: Real>(p: &[R; MAX_PARAMETERS], layout: Layout) -> Effective<R> {
-    let get = |i: usize| p.get(i).copied().unwrap_or(R::ZERO);
-    let total = |i: usize| if layout.active.get(i).copied().unwrap_or(false) { get(i).exp10() } else { R::ZERO };
+    let [q_meq, log_c, log_a, pka_a, log_b, pka_b] = *p;
+    let [_, carbonate, buffer_a, _, buffer_b, _] = layout.active;
+    let total = |active: bool, log: R| if active { log.exp10() } else { R::ZERO };
     Effective {
-        strong_charge_eq_per_l: get(0) * R::from_f64(1e-3),
-        carbonate_mol_per_l: total(1),
-        buffers: [(total(2), get(3)), (total(4), get(5))],
+        strong_charge_eq_per_l: q_meq * R::from_f64(1e-3),
+        carbonate_mol_per_l: total(carbonate, log_c),
+        buffers: [(total(buffer_a, log_a), pka_a), (total(buffer_b, log_b), pka_b)],
     }
+}
+
+/// The model sample of parameters `p` (clamped, so always a valid composition; a failure is
+/// reported as [`FitError::ModelFailed`], never replaced by a default).
+fn model_sample<R: Real>(p: &[R; MAX_PARAMETERS], layout: Layout, spec: &FitSpec<R>) -> Result<Sample<R>, FitError> {
+    to_effective(p, layout).solution(spec.temperature, spec.activity).map_err(|_| FitError::ModelFailed)
 }
 
 fn clamp_parameters<R: Real>(p: &mut [R; MAX_PARAMETERS]) {
@@ -187,7 +244,7 @@ fn residual_sum<R: Real, const M: usize>(
     titrant: &Solution<R, M>,
     data: &[(R, R)],
 ) -> Result<R, FitError> {
-    let sample: Sample<R> = to_effective(p, layout).solution(spec.temperature, spec.activity);
+    let sample = model_sample(p, layout, spec)?;
     let mut rss = R::ZERO;
     for (v, ph) in data {
         let r = point_residual(&sample, spec, titrant, *v, *ph)?;
@@ -210,20 +267,25 @@ pub fn fit<R: Real, const M: usize>(
     let layout = Layout::new(spec);
     let k = layout.count();
     let vol = spec.sample_volume_l.to_f64();
+    let [(start_a, start_pka_a), (start_b, start_pka_b)] = start.buffers;
+    let start_values =
+        [start.strong_charge_eq_per_l, start.carbonate_mol_per_l, start_a, start_pka_a, start_b, start_pka_b];
     if data.len() < k + 2
         || !(vol.is_finite() && vol > 0.0)
         || data.iter().any(|(v, p)| !v.is_finite() || !p.is_finite())
+        || start_values.iter().any(|v| !v.is_finite())
     {
         return Err(FitError::InvalidData);
     }
+    let points = u32::try_from(data.len()).map_err(|_| FitError::InvalidData)?;
     let log_or = |c: R, default: f64| if c > R::ZERO { c.log10() } else { R::from_f64(default) };
     let mut p: [R; MAX_PARAMETERS] = [
         start.strong_charge_eq_per_l * R::from_f64(1000.0),
         log_or(start.carbonate_mol_per_l, -3.0),
-        log_or(start.buffers[0].0, -3.5),
-        start.buffers[0].1,
-        log_or(start.buffers[1].0, -3.5),
-        start.buffers[1].1,
+        log_or(start_a, -3.5),
+        start_pka_a,
+        log_or(start_b, -3.5),
+        start_pka_b,
     ];
     clamp_parameters(&mut p);
     let h = R::PH_TOLERANCE.sqrt() * R::from_f64(10.0);
@@ -235,16 +297,15 @@ pub fn fit<R: Real, const M: usize>(
         // Normal equations from a forward-difference Jacobian, accumulated point by point.
         let (a, g) = normal_equations(&p, layout, spec, titrant, data, h)?;
         let mut improved = false;
-        // Up to 8 damping increases per iteration.
-        let max_diag =
-            (0..MAX_PARAMETERS).filter_map(|i| a.get(i).and_then(|r| r.get(i))).fold(R::ZERO, |m, d| m.max(*d));
+        let max_diag = a.iter().enumerate().map(|(i, row)| at(row, i)).fold(R::ZERO, |m, d| m.max(d));
+        // Up to 12 damping increases per iteration.
         for _ in 0..12 {
             // Marquardt scaling, with a floor so a column the data do not see stays invertible.
+            // MAX_PARAMETERS rows, each with its diagonal entry.
             let mut damped = a;
             for (i, row) in damped.iter_mut().enumerate() {
-                if let Some(d) = row.get_mut(i) {
-                    *d += lambda * d.max(R::from_f64(1e-6) * max_diag).max(R::from_f64(1e-30));
-                }
+                let d = at(row, i);
+                set(row, i, d + lambda * d.max(R::from_f64(1e-6) * max_diag).max(R::from_f64(1e-30)));
             }
             let Some(step) = solve_spd(&damped, &g, layout) else {
                 lambda *= R::from_f64(10.0);
@@ -279,17 +340,14 @@ pub fn fit<R: Real, const M: usize>(
     let dof = R::from_f64((n - k) as f64);
     let s2 = (rss / dof).max(R::from_f64(1e-12));
     let mut se = [R::ZERO; MAX_PARAMETERS];
-    for (i, e) in se.iter_mut().enumerate() {
-        if !layout.active.get(i).copied().unwrap_or(false) {
+    // MAX_PARAMETERS iterations, one solve each.
+    for (i, ((e, active), name)) in se.iter_mut().zip(layout.active).zip(NAMES).enumerate() {
+        if !active {
             continue;
         }
-        let mut unit = [R::ZERO; MAX_PARAMETERS];
-        if let Some(u) = unit.get_mut(i) {
-            *u = R::ONE;
-        }
-        let name = NAMES.get(i).copied().unwrap_or("parameter");
+        let unit: [R; MAX_PARAMETERS] = core::array::from_fn(|j| if j == i { R::ONE } else { R::ZERO });
         let col = solve_spd(&a, &unit, layout).ok_or(FitError::IllConditioned { parameter: name })?;
-        let var = col.get(i).copied().unwrap_or(R::ZERO) * s2;
+        let var = at(&col, i) * s2;
         if !var.is_finite() || var < R::ZERO {
             return Err(FitError::IllConditioned { parameter: name });
         }
@@ -301,17 +359,18 @@ pub fn fit<R: Real, const M: usize>(
     }
     let eff = to_effective(&p, layout);
     let ln10 = R::LN_10;
-    let se_of = |i: usize| se.get(i).copied().unwrap_or(R::ZERO);
+    let [se_q, se_c, se_a, se_pka_a, se_b, se_pka_b] = se;
+    let [(total_a, _), (total_b, _)] = eff.buffers;
     let standard_errors = Effective {
-        strong_charge_eq_per_l: se_of(0) * R::from_f64(1e-3),
-        carbonate_mol_per_l: eff.carbonate_mol_per_l * ln10 * se_of(1),
-        buffers: [(eff.buffers[0].0 * ln10 * se_of(2), se_of(3)), (eff.buffers[1].0 * ln10 * se_of(4), se_of(5))],
+        strong_charge_eq_per_l: se_q * R::from_f64(1e-3),
+        carbonate_mol_per_l: eff.carbonate_mol_per_l * ln10 * se_c,
+        buffers: [(total_a * ln10 * se_a, se_pka_a), (total_b * ln10 * se_b, se_pka_b)],
     };
     Ok(FitResult {
         effective: eff,
         standard_errors,
-        rms_ph: (rss / R::from_f64(n as f64)).sqrt(),
-        points: u32::try_from(n).unwrap_or(u32::MAX),
+        rms_ph: (rss / R::from_f64(f64::from(points))).sqrt(),
+        points,
         iterations,
     })
 }
@@ -328,15 +387,14 @@ fn normal_equations<R: Real, const M: usize>(
 ) -> Result<(Matrix<R>, [R; MAX_PARAMETERS]), FitError> {
     // One sample per shifted parameter (forward differences), built once. The Jacobian is never
     // stored: each data point's row (≤ 6 numbers) is accumulated into JᵀJ and Jᵀr at once.
-    let base: Sample<R> = to_effective(p, layout).solution(spec.temperature, spec.activity);
+    let base = model_sample(p, layout, spec)?;
     let mut shifted: [Option<Sample<R>>; MAX_PARAMETERS] = Default::default();
-    for (i, slot) in shifted.iter_mut().enumerate() {
-        if layout.active.get(i).copied().unwrap_or(false) {
+    // MAX_PARAMETERS iterations.
+    for (i, (slot, active)) in shifted.iter_mut().zip(layout.active).enumerate() {
+        if active {
             let mut q = *p;
-            if let Some(v) = q.get_mut(i) {
-                *v += h;
-            }
-            *slot = Some(to_effective(&q, layout).solution(spec.temperature, spec.activity));
+            set(&mut q, i, at(p, i) + h);
+            *slot = Some(model_sample(&q, layout, spec)?);
         }
     }
     let mut a = [[R::ZERO; MAX_PARAMETERS]; MAX_PARAMETERS];
@@ -349,14 +407,11 @@ fn normal_equations<R: Real, const M: usize>(
                 *j = (point_residual(sample, spec, titrant, *v, *ph)? - r0) / h;
             }
         }
-        for (i, ri) in row.iter().enumerate() {
-            if let Some(x) = g.get_mut(i) {
-                *x += *ri * r0;
-            }
-            if let Some(arow) = a.get_mut(i) {
-                for (x, rj) in arow.iter_mut().zip(row.iter()) {
-                    *x += *ri * *rj;
-                }
+        // MAX_PARAMETERS² updates.
+        for ((ri, gi), arow) in row.iter().zip(g.iter_mut()).zip(a.iter_mut()) {
+            *gi += *ri * r0;
+            for (x, rj) in arow.iter_mut().zip(row.iter()) {
+                *x += *ri * *rj;
             }
         }
     }
@@ -379,8 +434,10 @@ fn point_residual<R: Real, const M: usize>(
 }
 
 /// Solves A·x = b on the active sub-block by Cholesky; `None` when A is not positive definite
-/// or a pivot is below 1e-12 of the largest diagonal (numerically singular). k ≤ 6: fixed work.
-/// Written with `get` throughout so that no bounds check can panic (the link-time check in
+/// or a pivot is below 1e-12 of the largest diagonal (numerically singular). k ≤ 6: fixed work,
+/// at most k³ inner steps. Every index is in bounds by construction (i, j, m < k ≤
+/// MAX_PARAMETERS; `idx` holds indices < MAX_PARAMETERS) and goes through
+/// [`crate::invariant`]: asserted in tests, panic-free in release (the link-time check in
 /// tools/no-panic proves it).
 fn solve_spd<R: Real>(a: &Matrix<R>, b: &[R; MAX_PARAMETERS], layout: Layout) -> Option<[R; MAX_PARAMETERS]> {
     // Indices of the active parameters (push, not `collect`: heapless' FromIterator panics on
@@ -388,16 +445,14 @@ fn solve_spd<R: Real>(a: &Matrix<R>, b: &[R; MAX_PARAMETERS], layout: Layout) ->
     let mut idx: heapless::Vec<usize, MAX_PARAMETERS> = heapless::Vec::new();
     for (i, active) in layout.active.iter().enumerate() {
         if *active {
-            let _ = idx.push(i);
+            // Cannot fail: `layout.active` has MAX_PARAMETERS flags, the capacity.
+            let pushed = idx.push(i);
+            debug_assert!(pushed.is_ok(), "invariant broken: more active parameters than MAX_PARAMETERS");
         }
     }
     let k = idx.len();
-    let read = |m: &Matrix<R>, i: usize, j: usize| m.get(i).and_then(|row| row.get(j)).copied().unwrap_or(R::ZERO);
-    let at = |i: usize, j: usize| match (idx.get(i), idx.get(j)) {
-        (Some(&r), Some(&c)) => read(a, r, c),
-        _ => R::ZERO,
-    };
-    let max_diag = (0..k).map(|i| at(i, i)).fold(R::ZERO, |m, d| m.max(d));
+    let sub = |i: usize, j: usize| at2(a, at(&idx, i), at(&idx, j));
+    let max_diag = (0..k).map(|i| sub(i, i)).fold(R::ZERO, |m, d| m.max(d));
     if !max_diag.is_finite() || max_diag <= R::ZERO {
         return None;
     }
@@ -405,9 +460,9 @@ fn solve_spd<R: Real>(a: &Matrix<R>, b: &[R; MAX_PARAMETERS], layout: Layout) ->
     let mut l: Matrix<R> = [[R::ZERO; MAX_PARAMETERS]; MAX_PARAMETERS];
     for i in 0..k {
         for j in 0..=i {
-            let mut sum = at(i, j);
+            let mut sum = sub(i, j);
             for m in 0..j {
-                sum -= read(&l, i, m) * read(&l, j, m);
+                sum -= at2(&l, i, m) * at2(&l, j, m);
             }
             let value = if i == j {
                 if !sum.is_finite() || sum <= R::from_f64(1e-12) * max_diag {
@@ -415,39 +470,31 @@ fn solve_spd<R: Real>(a: &Matrix<R>, b: &[R; MAX_PARAMETERS], layout: Layout) ->
                 }
                 sum.sqrt()
             } else {
-                sum / read(&l, j, j)
+                sum / at2(&l, j, j)
             };
-            if let Some(x) = l.get_mut(i).and_then(|row| row.get_mut(j)) {
-                *x = value;
-            }
+            set2(&mut l, i, j, value);
         }
     }
     // Forward (L·y = b) and back (Lᵀ·x = y) substitution.
     let mut y = [R::ZERO; MAX_PARAMETERS];
     for i in 0..k {
-        let mut sum = idx.get(i).and_then(|&r| b.get(r)).copied().unwrap_or(R::ZERO);
+        let mut sum = at(b, at(&idx, i));
         for m in 0..i {
-            sum -= read(&l, i, m) * y.get(m).copied().unwrap_or(R::ZERO);
+            sum -= at2(&l, i, m) * at(&y, m);
         }
-        if let Some(v) = y.get_mut(i) {
-            *v = sum / read(&l, i, i);
-        }
+        set(&mut y, i, sum / at2(&l, i, i));
     }
     let mut x = [R::ZERO; MAX_PARAMETERS];
     for i in (0..k).rev() {
-        let mut sum = y.get(i).copied().unwrap_or(R::ZERO);
+        let mut sum = at(&y, i);
         for m in (i + 1)..k {
-            sum -= read(&l, m, i) * x.get(m).copied().unwrap_or(R::ZERO);
+            sum -= at2(&l, m, i) * at(&x, m);
         }
-        if let Some(v) = x.get_mut(i) {
-            *v = sum / read(&l, i, i);
-        }
+        set(&mut x, i, sum / at2(&l, i, i));
     }
     let mut out = [R::ZERO; MAX_PARAMETERS];
-    for (i, &r) in idx.iter().enumerate() {
-        if let (Some(o), Some(v)) = (out.get_mut(r), x.get(i)) {
-            *o = *v;
-        }
+    for (&r, v) in idx.iter().zip(x) {
+        set(&mut out, r, v);
     }
     Some(out)
 }
@@ -489,7 +536,7 @@ mod tests {
 
     /// Lab titration of a fictional metal-finishing effluent: 100 mL with 0.05 M NaOH, 0–12 mL.
     fn synthetic(truth: &Effective<f64>, sd_ph: f64, seed: u64) -> std::vec::Vec<(f64, f64)> {
-        let sample: Solution<f64, 4> = truth.solution(Celsius::new(20.0).unwrap(), Activity::Ideal);
+        let sample: Solution<f64, 4> = truth.solution(Celsius::new(20.0).unwrap(), Activity::Ideal).unwrap();
         let t = caustic();
         let mut noise = Noise(seed);
         (0..40)
@@ -526,6 +573,98 @@ mod tests {
         assert!(r.rms_ph > 0.005 && r.rms_ph < 0.02, "rms {}", r.rms_ph);
         assert!(r.standard_errors.carbonate_mol_per_l > 0.0 && r.standard_errors.carbonate_mol_per_l < 5e-4);
         assert!(r.iterations <= MAX_FIT_ITERATIONS);
+    }
+
+    fn t20() -> Celsius<f64> {
+        Celsius::new(20.0).unwrap()
+    }
+
+    #[test]
+    fn effective_solution_holds_every_fitted_system_at_the_minimum_capacity() {
+        let e = Effective {
+            strong_charge_eq_per_l: -2.0e-3,
+            carbonate_mol_per_l: 1.5e-3,
+            buffers: [(1.0e-3, 7.0), (2.0e-4, 9.5)],
+        };
+        let s: Solution<f64, FITTED_SYSTEMS> = e.solution(t20(), Activity::Ideal).unwrap();
+        let keys: std::vec::Vec<&str> = s.components().iter().map(|c| c.system.key).collect();
+        assert_eq!(keys, ["carbonate", BUFFER_KEYS[0], BUFFER_KEYS[1]]);
+        assert_eq!(s.strong_charge_eq_per_l(), -2.0e-3);
+        assert_eq!(s.total_of(BUFFER_KEYS[1]), 2.0e-4);
+        assert_eq!(s.component_pka(2, 1), Some(9.5));
+        // Unused entries are left out.
+        let strong_only = Effective { carbonate_mol_per_l: 0.0, buffers: [(0.0, 7.0), (0.0, f64::NAN)], ..e };
+        assert_eq!(strong_only.solution::<3>(t20(), Activity::Ideal).unwrap().components().len(), 0);
+    }
+
+    #[test]
+    fn effective_solution_refuses_values_it_used_to_drop() {
+        let ok =
+            Effective { strong_charge_eq_per_l: 1e-3, carbonate_mol_per_l: 1e-3, buffers: [(1e-4, 7.0), (0.0, 7.0)] };
+        let refused = |e: Effective<f64>| e.solution::<3>(t20(), Activity::Ideal).map(|s| s.components().len());
+        assert_eq!(refused(ok), Ok(2));
+        assert_eq!(refused(Effective { strong_charge_eq_per_l: f64::NAN, ..ok }), Err(CompositionError::NonFinite));
+        assert_eq!(refused(Effective { carbonate_mol_per_l: f64::NAN, ..ok }), Err(CompositionError::NonFinite));
+        assert_eq!(
+            refused(Effective { carbonate_mol_per_l: -1e-3, ..ok }),
+            Err(CompositionError::Negative { mol_per_l: -1e-3 })
+        );
+        assert_eq!(
+            refused(Effective { buffers: [(f64::INFINITY, 7.0), (0.0, 7.0)], ..ok }),
+            Err(CompositionError::NonFinite)
+        );
+        assert!(matches!(
+            refused(Effective { buffers: [(1e-4, f64::NAN), (0.0, 7.0)], ..ok }),
+            Err(CompositionError::InvalidSystem(_))
+        ));
+        assert!(matches!(
+            refused(Effective { strong_charge_eq_per_l: -1e3, ..ok }),
+            Err(CompositionError::TooConcentrated { .. })
+        ));
+    }
+
+    #[test]
+    fn buffer_keys_are_distinct_and_indexed_exactly() {
+        // Distinct keys: the solution would merge two buffers of the same key into one.
+        assert_ne!(BUFFER_KEYS[0], BUFFER_KEYS[1]);
+        assert!(!BUFFER_KEYS.contains(&catalogue::CARBONATE.key));
+        assert_eq!(buffer_system(1, 6.5).map(|s| s.key), Some(BUFFER_KEYS[1]));
+        assert_eq!(buffer_system(BUFFER_KEYS.len(), 6.5), None);
+    }
+
+    #[test]
+    fn a_start_that_is_not_finite_is_refused_not_clamped() {
+        let truth = Effective {
+            strong_charge_eq_per_l: -2.0e-3,
+            carbonate_mol_per_l: 1.5e-3,
+            buffers: [(0.0, 7.0), (0.0, 7.0)],
+        };
+        let data = synthetic(&truth, 0.0, 1);
+        let start = Effective { strong_charge_eq_per_l: f64::NAN, ..truth };
+        assert_eq!(fit(&spec(0, true), &caustic(), &data, &start).map(|r| r.points), Err(FitError::InvalidData));
+        let start = Effective { buffers: [(1e-4, f64::INFINITY), (0.0, 7.0)], ..truth };
+        assert_eq!(fit(&spec(0, true), &caustic(), &data, &start).map(|r| r.points), Err(FitError::InvalidData));
+        // The same data from a finite start fit, with every point counted.
+        assert_eq!(fit(&spec(0, true), &caustic(), &data, &truth).map(|r| r.points), Ok(40));
+    }
+
+    #[test]
+    fn solve_spd_solves_the_active_block_and_leaves_the_rest_zero() {
+        // SPD block on parameters 0 and 2 (a 2×2 system), inactive rows hold junk that must be
+        // ignored. Solution by hand: [[4, 2], [2, 3]]·x = [2, 5] → x = (−0.5, 2).
+        let mut a = [[9.0_f64; MAX_PARAMETERS]; MAX_PARAMETERS];
+        a[0][0] = 4.0;
+        a[0][2] = 2.0;
+        a[2][0] = 2.0;
+        a[2][2] = 3.0;
+        let b = [2.0, 7.0, 5.0, 7.0, 7.0, 7.0];
+        let layout = Layout { active: [true, false, true, false, false, false] };
+        let x = solve_spd(&a, &b, layout).unwrap();
+        assert!((x[0] + 0.5).abs() < 1e-12 && (x[2] - 2.0).abs() < 1e-12, "{x:?}");
+        assert_eq!([x[1], x[3], x[4], x[5]], [0.0; 4]);
+        // Not positive definite: refused.
+        a[2][2] = 1.0;
+        assert_eq!(solve_spd(&a, &b, layout), None);
     }
 
     #[test]

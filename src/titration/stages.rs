@@ -67,9 +67,9 @@ pub fn advise<R: Real>(
     let start = if below >= above { influent_min_ph } else { influent_max_ph };
     let mut setpoints_ph = [None; 3];
     let n = R::from_i32(i32::from(stages));
-    for (i, sp) in setpoints_ph.iter_mut().take(usize::from(stages)).enumerate() {
-        let k = R::from_i32(i32::try_from(i + 1).unwrap_or(1));
-        *sp = Some(start + (setpoint_ph - start) * k / n);
+    // Stage k of n (1 ≤ k ≤ stages ≤ 3): at most 3 iterations, counted in u8 so k is exact.
+    for (k, sp) in (1..=stages).zip(setpoints_ph.iter_mut()) {
+        *sp = Some(start + (setpoint_ph - start) * R::from_i32(i32::from(k)) / n);
     }
     Ok(StageAdvice {
         stages,
@@ -103,6 +103,8 @@ mod tests {
         assert!(b.both_directions);
         assert_eq!(b.setpoints_ph[1], Some(7.0));
         assert!((b.setpoints_ph[0].unwrap() - 9.25).abs() < 1e-12);
+        // One stage: the setpoint itself, and no entries past `stages`.
+        assert_eq!(advise(5.0_f64, 8.0, 7.0).unwrap().setpoints_ph, [Some(7.0), None, None]);
     }
 
     #[test]

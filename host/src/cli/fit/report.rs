@@ -120,7 +120,10 @@ pub fn compute(input: FitInput) -> Result<FitReport, CliError> {
 
     let max_l = data.iter().map(|(v, _)| *v).fold(0.0, f64::max);
     let model_curve = if max_l > 0.0 {
-        let sample: Solution<f64, 8> = result.effective.solution(c.temperature, c.activity);
+        let sample: Solution<f64, 8> = result
+            .effective
+            .solution(c.temperature, c.activity)
+            .map_err(|e| CliError::new(format!("fitted model: {e}")))?;
         let t = Titration { sample: &sample, sample_volume_l: input.sample_volume_l, titrant: &titrant };
         let mut out: FixedVec<CurvePoint<f64>, MODEL_CURVE_POINTS> = FixedVec::new();
         t.curve(max_l, &mut out).map_err(|e| CliError::new(format!("fitted model curve: {e}")))?;
