@@ -3,8 +3,8 @@
 //! Everything here is `no_std`, allocates nothing, contains no `unsafe` and does not panic:
 //! capacities are const generics, every fallible call returns a typed error, and every loop has
 //! a documented worst-case iteration count. The same code runs in `f32` (MCU with an FPU) and
-//! `f64` (host). This code can end up putting acid or caustic into a tank: read
-//! [SAFETY.md](https://github.com/phdose/phdose/blob/main/SAFETY.md) before you wire it to a pump.
+//! `f64` (host). This code can end up putting acid or caustic into a tank: read [`safety`]
+//! (the repository's SAFETY.md) before you wire it to a pump.
 //!
 //! ```
 //! use phdose::chem::{Activity, Solution};
@@ -44,6 +44,11 @@ mod invariant;
 pub mod real;
 pub mod titration;
 pub mod units;
+
+/// The repository's SAFETY.md, included so that the crate documentation carries it.
+pub mod safety {
+    #![doc = include_str!("../SAFETY.md")]
+}
 
 pub use real::Real;
 

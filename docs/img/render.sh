@@ -1,15 +1,19 @@
 #!/usr/bin/env bash
 # Regenerates the README's titration-curve figure from the built-in example:
 #   docs/img/titration-curve.svg  written by `phdose curve --example --svg`
-#   docs/img/titration-curve.png  converted with rsvg-convert (Debian: apt-get install librsvg2-bin)
+#   docs/img/titration-curve.png  converted with rsvg-convert (Debian package librsvg2-bin,
+#                                 installed with apt-get when it is missing)
 # Run from anywhere: bash docs/img/render.sh
 set -euo pipefail
 cd "$(dirname "$0")/../.."
 out=docs/img
-cargo run -q -p phdose-host -- curve --example --svg "$out/titration-curve.svg" > /dev/null
 if ! command -v rsvg-convert > /dev/null; then
-    echo "error: rsvg-convert not found (Debian/Ubuntu: apt-get install librsvg2-bin)" >&2
-    exit 1
+    echo "rsvg-convert not found: installing librsvg2-bin" >&2
+    sudo=""
+    if [ "$(id -u)" -ne 0 ]; then sudo=sudo; fi
+    $sudo apt-get update -qq
+    $sudo apt-get install -y -qq librsvg2-bin
 fi
+cargo run -q -p phdose-host -- curve --example --svg "$out/titration-curve.svg" > /dev/null
 rsvg-convert --width 1000 --background-color white "$out/titration-curve.svg" --output "$out/titration-curve.png"
 echo "wrote $out/titration-curve.svg and $out/titration-curve.png"

@@ -1,8 +1,9 @@
 //! `phdose`: the host command-line front end of the phdose chemistry crate.
 //!
-//! `phdose help` lists the commands. Exit codes: 0 success, 2 any input, solver or
-//! internal error (reported as `{"error": "..."}` on stdout with `--json`, as one
-//! `error: ...` line on stderr otherwise). The program never prints a panic or a backtrace.
+//! The arguments are defined with `clap` (see `cli`); `phdose --help` lists the commands.
+//! Exit codes: 0 success, 2 any usage, input, solver or internal error (reported as
+//! `{"error": "..."}` on stdout with `--json`, as an `error: ...` message on stderr otherwise).
+//! The program never prints a panic or a backtrace.
 
 mod cli;
 mod plot;

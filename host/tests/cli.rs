@@ -11,7 +11,7 @@ mod common;
 
 use std::process::Command;
 
-use common::{json_error, num, ok_json, run, table_error};
+use common::{json_error, num, ok_json, ok_table, run, table_error, usage_error};
 use serde_json::Value;
 
 /// Checks a speciate document's internal consistency: every system's forms appear in
@@ -288,21 +288,76 @@ fn salt_json_errors() {
 #[test]
 fn table_mode_errors() {
     assert!(table_error(&["speciate", "NaXYZ=0.001"]).contains("known formulas"));
-    assert!(table_error(&["speciate", "NaHCO3=abc"]).contains("not a number"));
-    assert!(table_error(&["speciate", "NaHCO3=NaN"]).contains("finite"));
     assert!(table_error(&["speciate", "NaHCO3=-0.001"]).contains("negative"));
-    assert!(table_error(&["speciate", "NaHCO3"]).contains("SUBSTANCE=MOL_PER_L"));
     assert!(table_error(&["speciate"]).contains("--example"));
     assert!(table_error(&["speciate", "NaHCO3=0.001", "--temperature-c", "150"]).contains("temperature"));
-    assert!(table_error(&["speciate", "NaHCO3=0.001", "--activity", "extended"]).contains("activity"));
-    assert!(table_error(&["speciate", "NaHCO3=0.001", "--temperature-c"]).contains("needs a value"));
-    assert!(table_error(&["speciate", "--example", "HCl=0.001"]).contains("--example"));
     assert!(table_error(&["speciate", "Na2SO4=1.5"]).contains("ionic strength"));
     assert!(table_error(&["salt", "Na2HPO4"]).contains("SALT MOL_PER_L"));
     assert!(table_error(&["salt", "HCl", "0.01"]).contains("not a salt"));
-    assert!(table_error(&["salt", "Na2HPO4", "0.05", "--verbose"]).contains("unknown option"));
-    assert!(table_error(&["frobnicate"]).contains("unknown command"));
-    assert!(table_error(&[]).contains("no command"));
+    // A number echoed in a message is short: 1e300, not 301 digits.
+    let e = table_error(&["speciate", "HCl=1e300"]);
+    assert!(e.contains("total 1e300 mol/L exceeds the 20 mol/L limit"), "{e}");
+    let e = table_error(&["salt", "Na2HPO4", "-0.000000001"]);
+    assert!(e.contains("concentration -1e-9 mol/L must be a number above 0"), "{e}");
+    // What the argument parser (clap) refuses: its message, a tip or the usage, exit 2.
+    assert!(usage_error(&["speciate", "NaHCO3=abc"]).contains("amount of NaHCO3: 'abc' is not a number"));
+    assert!(usage_error(&["speciate", "NaHCO3=NaN"]).contains("finite"));
+    assert!(usage_error(&["speciate", "NaHCO3"]).contains("SUBSTANCE=MOL_PER_L"));
+    assert!(usage_error(&["speciate", "NaHCO3=0.001", "--activity", "extended"]).contains("--activity"));
+    assert!(usage_error(&["speciate", "NaHCO3=0.001", "--temperature-c"]).contains("a value is required"));
+    assert!(usage_error(&["speciate", "--example", "HCl=0.001"]).contains("--example"));
+    assert!(usage_error(&["salt", "Na2HPO4", "0.05", "--verbose"]).contains("unexpected argument '--verbose'"));
+    assert!(usage_error(&["frobnicate"]).contains("unrecognized subcommand 'frobnicate'"));
+}
+
+#[test]
+fn no_command_prints_the_usage_with_exit_2() {
+    let r = run(&[], "");
+    assert_eq!(r.code, 2);
+    assert!(r.stdout.is_empty());
+    assert!(r.stderr.contains("Usage: phdose <COMMAND>"), "{}", r.stderr);
+    for command in ["speciate", "salt", "substances", "plan", "curve", "fit", "completions"] {
+        assert!(r.stderr.contains(command), "usage lacks {command}: {}", r.stderr);
+    }
+}
+
+#[test]
+fn a_mistyped_command_or_option_gets_a_suggestion() {
+    let e = usage_error(&["specaite", "NaHCO3=0.002"]);
+    assert!(e.contains("unrecognized subcommand 'specaite'") && e.contains("'speciate'"), "{e}");
+    let e = usage_error(&["speciate", "NaHCO3=0.002", "--temperature", "18"]);
+    assert!(e.contains("tip: a similar argument exists: '--temperature-c'"), "{e}");
+    // With --json the same refusal is a JSON document on stdout, still with the suggestion.
+    let msg = json_error(&["plan", "--json", "--setpoint", "7"], "");
+    assert!(msg.contains("unexpected argument '--setpoint'") && msg.contains("--setpoint-ph"), "{msg}");
+    assert!(!msg.contains("Usage:"), "{msg}");
+}
+
+#[test]
+fn version() {
+    let r = run(&["--version"], "");
+    assert_eq!(r.code, 0);
+    assert_eq!(r.stdout.trim(), format!("phdose {}", env!("CARGO_PKG_VERSION")));
+}
+
+#[test]
+fn bash_completion_script_parses() {
+    let r = run(&["completions", "bash"], "");
+    assert_eq!(r.code, 0, "{}", r.stderr);
+    for word in ["speciate", "--temperature-c", "--activity", "davies", "--out", "--force"] {
+        assert!(r.stdout.contains(word), "completion lacks {word}");
+    }
+    let dir = common::scratch("completions");
+    let script = dir.join("phdose.bash");
+    std::fs::write(&script, &r.stdout).unwrap();
+    let check = Command::new("bash").arg("-n").arg(&script).output().expect("bash is installed");
+    assert!(check.status.success(), "bash -n: {}", String::from_utf8_lossy(&check.stderr));
+    for shell in ["zsh", "fish", "powershell"] {
+        let r = run(&["completions", shell], "");
+        assert_eq!(r.code, 0, "{shell}: {}", r.stderr);
+        assert!(r.stdout.contains("speciate") && r.stdout.contains("temperature-c"), "{shell}");
+    }
+    assert!(usage_error(&["completions", "tcsh"]).contains("possible values"));
 }
 
 #[cfg(unix)]
@@ -318,11 +373,23 @@ fn non_utf8_argument_is_an_error_not_a_panic() {
 
 #[test]
 fn help_and_substances() {
-    for args in [&["--help"][..], &["help"], &["-h"], &["help", "salt"], &["speciate", "--help"], &["salt", "-h"]] {
-        let r = run(args, "");
+    let commands = ["speciate", "salt", "substances", "plan", "curve", "fit", "completions"];
+    for args in [vec!["--help"], vec!["help"], vec!["-h"]] {
+        let r = run(&args, "");
         assert_eq!(r.code, 0, "{args:?}");
-        assert!(r.stdout.contains("usage"), "{args:?}: {}", r.stdout);
+        assert!(r.stdout.contains("Usage: phdose <COMMAND>"), "{args:?}: {}", r.stdout);
+        assert!(commands.iter().all(|c| r.stdout.contains(c)), "{args:?}: {}", r.stdout);
     }
+    for command in commands {
+        for args in [vec![command, "--help"], vec!["help", command], vec![command, "-h"]] {
+            let r = run(&args, "");
+            assert_eq!(r.code, 0, "{args:?}");
+            assert!(r.stdout.contains(&format!("Usage: phdose {command}")), "{args:?}: {}", r.stdout);
+        }
+    }
+    // The examples of the old help texts are kept.
+    assert!(ok_table(&["speciate", "--help"]).contains("phdose speciate NaHCO3=0.002 H2SO4=0.0006"));
+    assert!(ok_table(&["help", "salt"]).contains("phdose salt Na2HPO4 0.05"));
     let r = run(&["substances"], "");
     assert_eq!(r.code, 0);
     assert!(r.stdout.contains("NaHCO3") && r.stdout.contains("sodium bicarbonate") && r.stdout.contains("84.006"));

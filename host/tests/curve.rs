@@ -9,19 +9,32 @@
 
 mod common;
 
-use common::{json_error, num, ok_json, ok_table, scratch, table_error};
+use common::{json_error, num, ok_json, ok_table, scratch, table_error, usage_error};
 
-/// The coordinates of the first `<polyline>` in an SVG document.
-fn polyline_points(svg: &str) -> Vec<(f64, f64)> {
-    let start = svg.find("<polyline").expect("a polyline");
-    let rest = &svg[start..];
-    let pts = rest.split("points=\"").nth(1).unwrap().split('"').next().unwrap();
-    pts.split_whitespace()
-        .map(|p| {
-            let (x, y) = p.split_once(',').unwrap();
-            (x.parse().unwrap(), y.parse().unwrap())
+/// The vertices of the longest polyline drawn in `color` (plotters draws axes, ticks and legend
+/// samples as polylines too, in other colours or with two points).
+fn curve_line(doc: &roxmltree::Document<'_>, color: &str) -> Vec<(f64, f64)> {
+    doc.descendants()
+        .filter(|n| n.has_tag_name("polyline") && n.attribute("stroke") == Some(color))
+        .map(|n| {
+            let points = n.attribute("points").unwrap().split_whitespace();
+            points.map(|p| p.split_once(',').unwrap()).map(|(x, y)| (x.parse().unwrap(), y.parse().unwrap())).collect()
         })
-        .collect()
+        .max_by_key(|v: &Vec<(f64, f64)>| v.len())
+        .expect("a polyline in the curve colour")
+}
+
+/// Every text of the SVG document, trimmed.
+fn texts(doc: &roxmltree::Document<'_>) -> Vec<String> {
+    doc.descendants().filter(|n| n.has_tag_name("text")).map(|n| n.text().unwrap_or("").trim().to_owned()).collect()
+}
+
+/// Circles filled with `color` (`filled`) or drawn open in it.
+fn circles(doc: &roxmltree::Document<'_>, color: &str, filled: bool) -> usize {
+    doc.descendants()
+        .filter(|n| n.has_tag_name("circle"))
+        .filter(|n| if filled { n.attribute("fill") == Some(color) } else { n.attribute("stroke") == Some(color) })
+        .count()
 }
 
 #[test]
@@ -85,26 +98,56 @@ fn csv_and_svg_files() {
     }
 
     let svg = std::fs::read_to_string(&svg).unwrap();
-    assert!(svg.starts_with("<svg") && svg.trim_end().ends_with("</svg>"));
-    let line = polyline_points(&svg);
+    let xml = roxmltree::Document::parse(&svg).expect("the SVG is well-formed XML");
+    assert!(xml.root_element().has_tag_name("svg"));
+    // The curve in its colour (blue in phdose's plot module), one vertex per curve point.
+    let line = curve_line(&xml, "#1F4E9C");
     assert_eq!(line.len(), 96, "one polyline vertex per curve point");
     // Pixel coordinates fall with rising pH (SVG y runs down): the first vertex (high pH) is
     // above the last.
     assert!(line[0].1 < line[95].1 && line[0].0 < line[95].0);
+    // Curve points as red dots, model points as green rings, each set once more in the legend.
     let curve = doc["equivalence_points"]["curve"].as_array().unwrap();
     let model = doc["equivalence_points"]["model"].as_array().unwrap();
-    assert_eq!(svg.matches("<circle class=\"eq-curve\"").count(), curve.len());
-    assert_eq!(svg.matches("<circle class=\"eq-model\"").count(), model.len());
+    assert_eq!(circles(&xml, "#C0392B", true), curve.len() + 1);
+    assert_eq!(circles(&xml, "#2E8B57", false), model.len() + 1);
+    let texts = texts(&xml);
     for e in curve {
-        let label = format!(">pH {:.2}</text>", num(e, "ph"));
-        assert!(svg.contains(&label), "SVG lacks the label {label}");
+        let label = format!("pH {:.2}", num(e, "ph"));
+        assert!(texts.contains(&label), "SVG lacks the label {label}: {texts:?}");
     }
-    for word in [">titrant added (mL)</text>", ">pH</text>", "rotate(-90"] {
-        assert!(svg.contains(word), "SVG lacks {word}");
+    // The model point at 5 mL (hydroxide, no inflection on the curve) is labelled too.
+    let hydroxide = model.iter().find(|e| (num(e, "titrant_ml") - 5.0).abs() < 1e-9).unwrap();
+    assert!(texts.contains(&format!("pH {:.2}", num(hydroxide, "ph"))), "{texts:?}");
+    for word in ["titrant added (mL)", "pH", "equivalence point on the curve", "equivalence point from the model"] {
+        assert!(texts.iter().any(|t| t == word), "SVG lacks {word}: {texts:?}");
     }
     // Tick labels on both axes: 0 … 30 mL and a pH range.
-    assert!(svg.contains(">0</text>") && svg.contains(">30</text>"));
-    assert!(svg.matches("<text").count() >= 15);
+    assert!(texts.iter().any(|t| t.parse::<f64>() == Ok(0.0)) && texts.iter().any(|t| t.parse::<f64>() == Ok(30.0)));
+    assert!(texts.len() >= 15);
+}
+
+#[test]
+fn out_folder_never_overwrites_without_force() {
+    let dir = scratch("curve-out").join("figures");
+    let d = dir.to_str().unwrap();
+    let out = ok_table(&["curve", "--example", "--out", d]);
+    let (csv, svg) = (dir.join("curve.csv"), dir.join("curve.svg"));
+    for path in [&csv, &svg] {
+        assert!(out.contains(&format!("to {}", path.display())), "{out}");
+    }
+    roxmltree::Document::parse(&std::fs::read_to_string(&svg).unwrap()).unwrap();
+    // A second run refuses and leaves the files alone; --force overwrites them.
+    std::fs::write(&csv, "kept").unwrap();
+    let e = table_error(&["curve", "--example", "--out", d]);
+    assert!(e.contains("will not overwrite") && e.contains("--force"), "{e}");
+    assert_eq!(std::fs::read_to_string(&csv).unwrap(), "kept");
+    let doc = ok_json(&["curve", "--example", "--json", "--out", d, "--force"], "");
+    assert_eq!(doc["files"]["csv"].as_str(), csv.to_str());
+    assert!(std::fs::read_to_string(&csv).unwrap().starts_with("titrant_ml,ph"));
+    // --force alone, or --out with a single-file option, is a usage error.
+    assert!(usage_error(&["curve", "--example", "--force"]).contains("--out"));
+    assert!(usage_error(&["curve", "--example", "--out", d, "--svg", "c.svg"]).contains("cannot be used with"));
 }
 
 #[test]
@@ -188,9 +231,9 @@ fn input_errors_exit_2() {
     let dir = scratch("curve-errors");
     let missing = dir.join("no-such-dir").join("c.svg");
     let e = table_error(&["curve", "--example", "--svg", missing.to_str().unwrap()]);
-    assert!(e.contains("cannot write SVG file"), "{e}");
-    assert!(table_error(&["curve", "--example", "NaOH=0.1"]).contains("--example"));
-    assert!(table_error(&["curve", "--example", "--sample-ml", "50"]).contains("fixed scenario"));
+    assert!(e.contains("cannot write SVG"), "{e}");
+    assert!(usage_error(&["curve", "--example", "NaOH=0.1"]).contains("--example"));
+    assert!(usage_error(&["curve", "--example", "--sample-ml", "50"]).contains("'--example' cannot be used with"));
     assert!(
         table_error(&["curve", "NaOH=0.001", "--sample-ml", "100", "--titrant", "HCl=0.02"])
             .contains("--max-titrant-ml")

@@ -9,7 +9,7 @@
 
 mod common;
 
-use common::{json_error, num, ok_json, ok_table, run, scratch, table_error};
+use common::{json_error, num, ok_json, ok_table, run, scratch, table_error, usage_error};
 use phdose::chem::{Activity, Solution};
 use phdose::titration::fit::Effective;
 use phdose::units::Celsius;
@@ -150,12 +150,23 @@ fn file_flags_and_json_agree() {
     check_recovery(&doc);
     assert_eq!(doc["strong_charge_meq_per_l"], example["strong_charge_meq_per_l"]);
 
-    // The plot: one polyline (the fitted model) and one square per lab point.
+    // The plot (well-formed XML): the fitted model as a blue line, one red square per lab point
+    // and one in the legend.
     let text = std::fs::read_to_string(&svg).unwrap();
-    assert_eq!(text.matches("<polyline").count(), 1);
-    let squares = text.split("<g class=\"data-points\"").nth(1).unwrap().split("</g>").next().unwrap();
-    assert_eq!(squares.matches("<rect").count(), 49);
-    assert!(text.contains(">titrant added (mL)</text>") && text.contains(">pH</text>"));
+    let xml = roxmltree::Document::parse(&text).expect("the SVG is well-formed XML");
+    let model_lines = xml
+        .descendants()
+        .filter(|n| n.has_tag_name("polyline") && n.attribute("stroke") == Some("#1F4E9C"))
+        .filter(|n| n.attribute("points").unwrap().split_whitespace().count() > 2)
+        .count();
+    assert_eq!(model_lines, 1);
+    let squares =
+        xml.descendants().filter(|n| n.has_tag_name("rect") && n.attribute("fill") == Some("#C0392B")).count();
+    assert_eq!(squares, 49 + 1);
+    let texts: Vec<&str> = xml.descendants().filter(|n| n.has_tag_name("text")).filter_map(|n| n.text()).collect();
+    for word in ["titrant added (mL)", "pH", "lab points (49)"] {
+        assert!(texts.iter().any(|t| t.trim() == word), "SVG lacks {word}: {texts:?}");
+    }
 }
 
 #[test]
@@ -213,11 +224,13 @@ fn input_errors_exit_2() {
     assert!(table_error(&["fit", "--data", f, "--sample-ml", "100"]).contains("--titrant"));
     assert!(table_error(&["fit", "--data", f, "--titrant", "NaOH=0.05"]).contains("--sample-ml"));
     assert!(
-        table_error(&["fit", "--data", f, "--titrant", "NaOH=0.05", "--titrant-json", "{}", "--sample-ml", "1"])
-            .contains("not both")
+        usage_error(&["fit", "--data", f, "--titrant", "NaOH=0.05", "--titrant-json", "{}", "--sample-ml", "1"])
+            .contains("cannot be used with")
     );
     assert!(table_error(&["fit", "--example", "--buffers", "3"]).contains("0, 1 or 2"));
-    assert!(table_error(&["fit", "--example", "--carbonate"]).contains("fixed data set"));
+    assert!(
+        usage_error(&["fit", "--example", "--carbonate"]).contains("'--example' cannot be used with '--carbonate'")
+    );
     assert!(table_error(&["fit"]).contains("--data"));
 
     let base = r#""sample_volume_l": 0.1, "titrant": {"dissolved": {"NaOH": 0.05}}"#;

@@ -8,7 +8,7 @@
 
 mod common;
 
-use common::{json_error, num, ok_json, ok_table, run, table_error};
+use common::{json_error, num, ok_json, ok_table, run, table_error, usage_error};
 use phdose::chem::{Activity, Solution};
 use phdose::units::Celsius;
 use serde_json::Value;
@@ -272,10 +272,10 @@ fn input_errors_exit_2() {
     assert!(
         table_error(&["plan", "HCl=0.001", "--reagent", "NaOH=1", "--setpoint-ph", "7"]).contains("--flow-l-per-h")
     );
-    assert!(table_error(&["plan", "--example", "HCl=0.001"]).contains("--example"));
+    assert!(usage_error(&["plan", "--example", "HCl=0.001"]).contains("--example"));
     assert!(table_error(&["plan", "--example", "--reagent", "NaOH=33%"]).contains("density"));
-    assert!(table_error(&["plan", "--example", "--pump-max-l-per-h", "x"]).contains("not a number"));
-    assert!(table_error(&["plan", "--example", "--no-pump", "--pump-step-l-per-h", "0.1"]).contains("--no-pump"));
+    assert!(usage_error(&["plan", "--example", "--pump-max-l-per-h", "x"]).contains("not a number"));
+    assert!(usage_error(&["plan", "--example", "--no-pump", "--pump-step-l-per-h", "0.1"]).contains("--no-pump"));
     assert!(table_error(&["plan"]).contains("--example"));
 }
 

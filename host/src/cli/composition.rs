@@ -4,8 +4,8 @@
 use phdose::chem::{Solution, Substance, substance};
 
 use super::CliError;
-use super::args;
 use super::conditions::Conditions;
+use super::error;
 
 /// Systems one host solution can hold; the catalogue has fewer, so any mix of built-in
 /// substances (plus a reagent's) fits.
@@ -51,29 +51,20 @@ pub fn resolve(entries: Vec<(String, f64)>, what: &str) -> Result<Vec<Dissolved>
     Ok(dissolved)
 }
 
-/// Parses `SUBSTANCE=MOL_PER_L` arguments into (name, amount) pairs.
+/// Parses `SUBSTANCE=MOL_PER_L` items into (name, amount) pairs.
 pub fn parse_pairs<S: AsRef<str>>(items: &[S]) -> Result<Vec<(String, f64)>, CliError> {
-    let mut entries = Vec::with_capacity(items.len());
-    for item in items {
-        let item = item.as_ref();
-        let Some((name, amount)) = item.rsplit_once('=') else {
-            return Err(CliError::new(format!("expected SUBSTANCE=MOL_PER_L, got '{item}'")));
-        };
-        let name = name.trim();
-        entries.push((name.to_owned(), args::number(&format!("amount of {name}"), amount)?));
-    }
-    Ok(entries)
+    items.iter().map(|item| super::value::pair(item.as_ref())).collect()
 }
 
 /// The `SUBSTANCE=MOL_PER_L` arguments of a command, at least one: with none, the error opens
 /// with `none` ("no sample") and shows `example` ("NaOH=0.001 Na2CO3=0.002").
-pub fn parse_positionals(positionals: &[String], none: &str, example: &str) -> Result<Vec<(String, f64)>, CliError> {
-    if positionals.is_empty() {
+pub fn require(pairs: &[(String, f64)], none: &str, example: &str) -> Result<Vec<(String, f64)>, CliError> {
+    if pairs.is_empty() {
         return Err(CliError::new(format!(
             "{none}: give SUBSTANCE=MOL_PER_L arguments (e.g. {example}), or --example"
         )));
     }
-    parse_pairs(positionals)
+    Ok(pairs.to_vec())
 }
 
 /// The solution of `dissolved` under `conditions`; `what` ("influent", "sample") prefixes
@@ -85,7 +76,8 @@ pub fn solution<const N: usize>(
 ) -> Result<Solution<f64, N>, CliError> {
     let mut s = Solution::new(conditions.temperature, conditions.activity);
     for d in dissolved {
-        s.add_substance(d.substance, d.mol_per_l).map_err(|e| in_part(what, format!("{}: {e}", d.given_as)))?;
+        s.add_substance(d.substance, d.mol_per_l)
+            .map_err(|e| in_part(what, format!("{}: {}", d.given_as, error::composition(e))))?;
     }
     Ok(s)
 }
@@ -126,8 +118,12 @@ mod tests {
         let e = resolve(vec![("HCl".into(), 1.0), ("hydrochloric acid".into(), 1.0)], "influent").unwrap_err();
         assert!(e.message().starts_with("influent: HCl is given twice"), "{e}");
         assert!(resolve(vec![("NaXYZ".into(), 1.0)], "").unwrap_err().message().starts_with("'NaXYZ': "));
-        let e = parse_positionals(&[], "no sample", "NaOH=0.001").unwrap_err();
+        let e = require(&[], "no sample", "NaOH=0.001").unwrap_err();
         assert_eq!(e.message(), "no sample: give SUBSTANCE=MOL_PER_L arguments (e.g. NaOH=0.001), or --example");
-        assert_eq!(parse_positionals(&["HCl=0.001".to_owned()], "no sample", "").unwrap(), [("HCl".to_owned(), 0.001)]);
+        assert_eq!(require(&[("HCl".to_owned(), 0.001)], "no sample", "").unwrap(), [("HCl".to_owned(), 0.001)]);
+        let e =
+            solution::<2>(Conditions::new(None, None).unwrap(), &resolve(vec![("HCl".into(), 1e300)], "").unwrap(), "")
+                .unwrap_err();
+        assert_eq!(e.message(), "HCl: total 1e300 mol/L exceeds the 20 mol/L limit");
     }
 }

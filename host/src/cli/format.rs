@@ -1,4 +1,4 @@
-//! Number formatting for the readable tables.
+//! Number formatting for the readable tables and for every message that echoes a number.
 
 /// A concentration or other small quantity: "2.000e-3", "0" for zero, "n/a" when not finite.
 pub fn sci(v: f64) -> String {
@@ -9,6 +9,13 @@ pub fn sci(v: f64) -> String {
     } else {
         format!("{v:.3e}")
     }
+}
+
+/// A number echoed in a message: as Rust writes it (the shortest form that reads back the
+/// same, so a value the user typed comes back as typed) for 1e-4 ≤ |v| < 1e6 and zero, in
+/// scientific notation outside ("1e300", not 301 digits; "2.5e-7", not "0.00000025").
+pub fn num(v: f64) -> String {
+    if v == 0.0 || !v.is_finite() || (1e-4..1e6).contains(&v.abs()) { format!("{v}") } else { format!("{v:e}") }
 }
 
 /// A pH-like quantity with `decimals` decimals, "n/a" when not finite.
@@ -83,5 +90,13 @@ mod tests {
         assert_eq!(sig(3888.0, 2), "3900");
         assert_eq!(sig(1200.0, 6), "1200");
         assert_eq!(sig(f64::NAN, 3), "n/a");
+        assert_eq!(num(1e300), "1e300");
+        assert_eq!(num(-1e-300), "-1e-300");
+        assert_eq!(num(2.5e-7), "2.5e-7");
+        assert_eq!(num(0.05), "0.05");
+        assert_eq!(num(1200.0), "1200");
+        assert_eq!(num(1e7), "1e7");
+        assert_eq!(num(0.0), "0");
+        assert_eq!(num(f64::NAN), "NaN");
     }
 }

@@ -1,6 +1,5 @@
-//! Command dispatch, output modes and exit codes.
+//! The command line (`clap` derive), dispatch, output modes and exit codes.
 
-mod args;
 mod caution;
 mod composition;
 mod conditions;
@@ -9,7 +8,6 @@ mod error;
 mod files;
 mod fit;
 mod format;
-mod help;
 mod json;
 mod layout;
 mod plan;
@@ -17,51 +15,119 @@ mod reagent;
 mod salt;
 mod speciate;
 mod substances;
+mod value;
 mod volume;
 
 use std::ffi::OsString;
 use std::io::{self, Read, Write};
 use std::process::ExitCode;
 
+use clap::{CommandFactory, Parser, Subcommand};
+use clap_complete::Shell;
+
 pub use error::CliError;
 
-/// Exit code of every failure (input, solver or internal error).
+/// Exit code of every failure (usage, input, solver or internal error).
 pub const FAILURE_CODE: u8 = 2;
+
+const AFTER_HELP: &str = "\
+With --json, the request is one JSON object on stdin and the result one JSON object on stdout.
+
+Exit codes:
+  0  a result was computed. For `plan` this includes an unreachable setpoint and failed
+     checks: they are results (\"reachable\": false, \"verdicts\"), not errors.
+  2  any usage, input, solver or internal error, and a refused (ill-conditioned) fit:
+     {\"error\": \"...\"} on stdout with --json, a message on stderr otherwise.
+Defaults: 25 °C, Davies activities. Amounts are mol/L.
+
+Examples:
+  phdose speciate NaHCO3=0.002 HCl=0.001 --temperature-c 18
+  echo '{\"salt\": \"Na2HPO4\", \"concentration_mol_per_l\": 0.05}' | phdose salt --json
+  phdose plan --example
+  phdose curve --example --out figures
+  phdose help plan
+  phdose completions bash > ~/.local/share/bash-completion/completions/phdose
+
+Model results do not replace pH measurement or hardwired interlocks: read SAFETY.md.";
+
+/// phdose — acid-base chemistry for pH dosing (host tools)
+#[derive(Debug, Parser)]
+#[command(name = "phdose", version, arg_required_else_help = true, after_help = AFTER_HELP)]
+struct Cli {
+    #[command(subcommand)]
+    command: Command,
+}
+
+#[derive(Debug, Subcommand)]
+enum Command {
+    Speciate(speciate::Args),
+    Salt(salt::Args),
+    Substances(substances::Args),
+    Plan(plan::Args),
+    Curve(curve::Args),
+    Fit(fit::Args),
+    /// print a shell completion script for phdose
+    #[command(
+        after_help = "Install (bash): phdose completions bash > ~/.local/share/bash-completion/completions/phdose\n\
+                            See README.md for zsh, fish and PowerShell."
+    )]
+    Completions {
+        /// The shell to complete in
+        #[arg(value_enum)]
+        shell: Shell,
+    },
+}
 
 /// How results and errors are printed.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum Mode {
     /// `--json`: one JSON document on stdout, errors as `{"error": "..."}` on stdout.
     Json,
-    /// Readable tables on stdout, errors as one `error: ...` line on stderr.
+    /// Readable tables on stdout, errors as a message on stderr.
     Table,
 }
 
-/// `true` when `--json` appears among the arguments (before a `--` separator).
+impl Mode {
+    /// `Json` when `--json` was given.
+    pub fn of(json: bool) -> Self {
+        if json { Self::Json } else { Self::Table }
+    }
+}
+
+/// `true` when `--json` appears among the arguments (before a `--` separator): decides how an
+/// error is reported even when the arguments do not parse.
 pub fn wants_json(argv: &[OsString]) -> bool {
     argv.iter().take_while(|a| *a != "--").any(|a| a == "--json")
 }
 
 /// What one run prints and how it exits.
 #[derive(Debug)]
-pub struct Outcome {
-    stdout: String,
-    stderr: String,
-    code: u8,
+pub enum Outcome {
+    /// Text for stdout and stderr, and the exit code.
+    Text {
+        /// For stdout.
+        stdout: String,
+        /// For stderr.
+        stderr: String,
+        /// Exit code.
+        code: u8,
+    },
+    /// Help, version or a usage error, printed by `clap` (to stdout with code 0 for help and
+    /// version, to stderr with code 2 otherwise; coloured on a terminal).
+    Clap(clap::Error),
 }
 
 impl Outcome {
     fn success(stdout: String) -> Self {
-        Self { stdout, stderr: String::new(), code: 0 }
+        Self::Text { stdout, stderr: String::new(), code: 0 }
     }
 
     fn failure(mode: Mode, error: &CliError) -> Self {
-        match mode {
-            Mode::Json => {
-                Self { stdout: json::error_document(error.message()), stderr: String::new(), code: FAILURE_CODE }
-            }
-            Mode::Table => Self { stdout: String::new(), stderr: format!("error: {error}\n"), code: FAILURE_CODE },
-        }
+        let (stdout, stderr) = match mode {
+            Mode::Json => (json::error_document(error.message()), String::new()),
+            Mode::Table => (String::new(), format!("error: {error}\n")),
+        };
+        Self::Text { stdout, stderr, code: FAILURE_CODE }
     }
 
     /// The outcome after a caught panic (the panic hook has already said where, on stderr).
@@ -69,51 +135,70 @@ impl Outcome {
         if json {
             Self::failure(Mode::Json, &CliError::new("internal error (a bug in phdose, please report it)"))
         } else {
-            Self { stdout: String::new(), stderr: String::new(), code: FAILURE_CODE }
+            Self::Text { stdout: String::new(), stderr: String::new(), code: FAILURE_CODE }
         }
     }
 
     /// Prints the outcome and returns the exit code. A reader that closes the pipe early
     /// (`phdose substances | head`) is not an error.
     pub fn emit(self) -> ExitCode {
-        let mut code = self.code;
+        let (stdout, stderr, mut code) = match self {
+            Self::Text { stdout, stderr, code } => (stdout, stderr, code),
+            Self::Clap(e) => {
+                let _ = e.print();
+                return ExitCode::from(if e.exit_code() == 0 { 0 } else { FAILURE_CODE });
+            }
+        };
         let mut out = io::stdout().lock();
-        if let Err(e) = out.write_all(self.stdout.as_bytes()).and_then(|()| out.flush())
+        if let Err(e) = out.write_all(stdout.as_bytes()).and_then(|()| out.flush())
             && e.kind() != io::ErrorKind::BrokenPipe
         {
             let _ = writeln!(io::stderr(), "error: cannot write to stdout: {e}");
             code = FAILURE_CODE;
         }
-        let _ = io::stderr().write_all(self.stderr.as_bytes());
+        let _ = io::stderr().write_all(stderr.as_bytes());
         ExitCode::from(code)
     }
 }
 
+/// A `clap` error as one message for the JSON error document: its first paragraph and any tip,
+/// without the "error: " prefix and the usage lines.
+fn clap_message(e: &clap::Error) -> String {
+    let text = e.render().to_string();
+    let text = text.strip_prefix("error: ").unwrap_or(&text);
+    text.split("\n\nUsage:").next().unwrap_or(text).trim().to_owned()
+}
+
 /// Runs the command line `argv` (without the program name), reading JSON input from `stdin`.
 pub fn run(argv: &[OsString], stdin: &mut dyn Read) -> Outcome {
-    let mode = if wants_json(argv) { Mode::Json } else { Mode::Table };
-    match dispatch(argv, stdin, mode) {
+    let mode = Mode::of(wants_json(argv));
+    let cli = match Cli::try_parse_from(std::iter::once(OsString::from("phdose")).chain(argv.iter().cloned())) {
+        Ok(cli) => cli,
+        Err(e) if mode == Mode::Json && e.use_stderr() => {
+            return Outcome::failure(mode, &CliError::new(clap_message(&e)));
+        }
+        Err(e) => return Outcome::Clap(e),
+    };
+    let result = match cli.command {
+        Command::Speciate(a) => speciate::run(a, stdin),
+        Command::Salt(a) => salt::run(a, stdin),
+        Command::Substances(a) => substances::run(a),
+        Command::Plan(a) => plan::run(a, stdin),
+        Command::Curve(a) => curve::run(a, stdin),
+        Command::Fit(a) => fit::run(a, stdin),
+        Command::Completions { shell } => Ok(completions(shell)),
+    };
+    match result {
         Ok(text) => Outcome::success(text),
         Err(e) => Outcome::failure(mode, &e),
     }
 }
 
-fn dispatch(argv: &[OsString], stdin: &mut dyn Read, mode: Mode) -> Result<String, CliError> {
-    let args = args::to_strings(argv)?;
-    let Some((command, rest)) = args.split_first() else {
-        return Err(CliError::new("no command given; run `phdose help` for the list of commands"));
-    };
-    match command.as_str() {
-        "speciate" => speciate::run(rest, mode, stdin),
-        "salt" => salt::run(rest, mode, stdin),
-        "substances" => substances::run(rest, mode),
-        "plan" => plan::run(rest, mode, stdin),
-        "curve" => curve::run(rest, mode, stdin),
-        "fit" => fit::run(rest, mode, stdin),
-        "help" | "--help" | "-h" => help::run(rest),
-        "version" | "--version" | "-V" => Ok(format!("phdose {}\n", env!("CARGO_PKG_VERSION"))),
-        other => Err(CliError::new(format!("unknown command '{other}'; the commands are {}", help::COMMANDS))),
-    }
+/// The completion script for `shell`.
+fn completions(shell: Shell) -> String {
+    let mut script = Vec::new();
+    clap_complete::generate(shell, &mut Cli::command(), "phdose", &mut script);
+    String::from_utf8_lossy(&script).into_owned()
 }
 
 #[cfg(test)]
@@ -125,6 +210,11 @@ mod tests {
     }
 
     #[test]
+    fn the_definitions_are_consistent() {
+        Cli::command().debug_assert();
+    }
+
+    #[test]
     fn json_mode_is_detected_before_the_separator_only() {
         assert!(wants_json(&os(&["salt", "--json"])));
         assert!(!wants_json(&os(&["salt", "--", "--json"])));
@@ -132,12 +222,28 @@ mod tests {
     }
 
     #[test]
-    fn failures_go_to_the_right_stream_with_code_2() {
-        let table = run(&os(&["frobnicate"]), &mut io::empty());
-        assert_eq!(table.code, FAILURE_CODE);
-        assert!(table.stdout.is_empty() && table.stderr.starts_with("error: unknown command"));
-        let json = run(&os(&["frobnicate", "--json"]), &mut io::empty());
-        assert_eq!(json.code, FAILURE_CODE);
-        assert!(json.stderr.is_empty() && json.stdout.contains("\"error\""));
+    fn usage_errors_are_clap_errors_or_json_documents() {
+        let Outcome::Clap(e) = run(&os(&["specaite"]), &mut io::empty()) else {
+            unreachable!("a mistyped command is a clap error")
+        };
+        assert_eq!((e.kind(), e.exit_code()), (clap::error::ErrorKind::InvalidSubcommand, 2));
+        let Outcome::Text { stdout, stderr, code } = run(&os(&["specaite", "--json"]), &mut io::empty()) else {
+            unreachable!("with --json the error is a JSON document")
+        };
+        assert_eq!(code, FAILURE_CODE);
+        assert!(stderr.is_empty());
+        let doc: serde_json::Value = serde_json::from_str(&stdout).unwrap_or_default();
+        let message = doc.get("error").and_then(|m| m.as_str()).unwrap_or_default();
+        assert!(message.starts_with("unrecognized subcommand 'specaite'") && message.contains("speciate"), "{stdout}");
+        assert!(!message.contains("Usage:"), "{message}");
+    }
+
+    #[test]
+    fn help_is_printed_by_clap_with_code_0() {
+        let Outcome::Clap(e) = run(&os(&["plan", "--help", "--json"]), &mut io::empty()) else {
+            unreachable!("help is clap's")
+        };
+        assert_eq!(e.exit_code(), 0);
+        assert!(e.render().to_string().contains("reagent_flow_l_per_h"));
     }
 }

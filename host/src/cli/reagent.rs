@@ -10,10 +10,10 @@ use phdose::titration::reagent::{self, COMMON_GRADES};
 use serde::{Deserialize, Serialize};
 
 use super::CliError;
-use super::args;
 use super::composition::{self, Dissolved};
 use super::conditions::Conditions;
-use super::format::sig;
+use super::error;
+use super::format::{num, sig};
 use super::json::{Entries, Num};
 
 /// Systems a reagent solution can hold.
@@ -96,19 +96,19 @@ impl Reagent {
                     .find(|g| g.formula == s.formula && g.mass_percent == mass_percent)
                     .ok_or_else(|| {
                         let known: Vec<String> =
-                            COMMON_GRADES.iter().map(|g| format!("{} {} %", g.formula, g.mass_percent)).collect();
+                            COMMON_GRADES.iter().map(|g| format!("{} {} %", g.formula, num(g.mass_percent))).collect();
                         CliError::new(format!(
-                            "{what}: density_kg_per_l is needed for {} {mass_percent} %; the built-in grade table \
-                             has {}",
+                            "{what}: density_kg_per_l is needed for {} {} %; the built-in grade table has {}",
                             s.formula,
+                            num(mass_percent),
                             known.join(", ")
                         ))
                     })?;
                 (g.density_kg_per_l, format!("grade table at {} °C: {}", g.at_celsius, g.source))
             }
         };
-        let mol_per_l: f64 =
-            reagent::mol_per_l(s, mass_percent, density_kg_per_l).map_err(|e| CliError::new(format!("{what}: {e}")))?;
+        let mol_per_l: f64 = reagent::mol_per_l(s, mass_percent, density_kg_per_l)
+            .map_err(|e| CliError::new(format!("{what}: {}", error::reagent(e))))?;
         Ok(Self {
             dissolved: vec![Dissolved { given_as: name.to_owned(), substance: s, mol_per_l }],
             grade: Some(Grade { mass_percent, density_kg_per_l, density_source }),
@@ -128,16 +128,15 @@ impl Reagent {
     }
 
     /// From a command-line value: `NaOH=0.05` or `NaOH=0.05,Na2CO3=0.001` (mol/L), or
-    /// `NaOH=25%` (mass percent; `density` from its own flag, or the grade table).
-    pub fn from_flag(text: &str, density: Option<&str>, what: &str) -> Result<Self, CliError> {
-        let density = density.map(|d| args::number(&format!("{what} density"), d)).transpose()?;
+    /// `NaOH=25%` (mass percent; `density` (kg/L) from its own option, or the grade table).
+    pub fn from_flag(text: &str, density: Option<f64>, what: &str) -> Result<Self, CliError> {
         if let Some((name, percent)) = text.rsplit_once('=')
             && let Some(percent) = percent.trim().strip_suffix('%')
         {
             if name.contains(',') {
                 return Err(CliError::new(format!("{what}: a mass-percent reagent is one substance, got '{text}'")));
             }
-            let w = args::number(&format!("{what} mass percent"), percent)?;
+            let w = super::value::number(&format!("{what} mass percent"), percent)?;
             return Self::grade(name.trim(), w, density, what);
         }
         if density.is_some() {
@@ -204,7 +203,7 @@ mod tests {
     #[test]
     fn forms_agree() {
         let table = Reagent::from_flag("NaOH=25%", None, "reagent").unwrap();
-        let given = Reagent::from_flag("sodium hydroxide=25%", Some("1.274"), "reagent").unwrap();
+        let given = Reagent::from_flag("sodium hydroxide=25%", Some(1.274), "reagent").unwrap();
         let (a, b) = (table.single_mol_per_l().unwrap(), given.single_mol_per_l().unwrap());
         // c = w·ρ·1000/M = 0.25 · 1.274 · 1000 / 39.997 (calc from the grade table's density).
         assert!((a - 0.25 * 1.274 * 1000.0 / 39.997).abs() < 1e-9 && a == b);
@@ -220,8 +219,10 @@ mod tests {
     fn bad_reagents() {
         assert!(Reagent::from_flag("NaOH=33%", None, "reagent").unwrap_err().message().contains("grade table"));
         assert!(Reagent::from_flag("NaOH=0", None, "reagent").is_err());
-        assert!(Reagent::from_flag("NaOH=0.1", Some("1.2"), "reagent").is_err());
-        assert!(Reagent::from_flag("NaOH=120%", Some("1.2"), "reagent").is_err());
+        assert!(Reagent::from_flag("NaOH=0.1", Some(1.2), "reagent").is_err());
+        assert!(Reagent::from_flag("NaOH=120%", Some(1.2), "reagent").is_err());
+        let e = Reagent::from_flag("NaOH=25%", Some(1e300), "reagent").unwrap_err();
+        assert_eq!(e.message(), "reagent: density 1e300 kg/L is outside (0.5, 3]");
         let both: ReagentJson =
             serde_json::from_str(r#"{"dissolved": {"NaOH": 1}, "substance": "NaOH", "mass_percent": 25}"#).unwrap();
         assert!(Reagent::from_json(both, "reagent").is_err());

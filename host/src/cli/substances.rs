@@ -5,9 +5,19 @@ use std::fmt::Write;
 use phdose::chem::substance::{Part, SUBSTANCES, Substance};
 use serde::Serialize;
 
-use super::args::{self, HELP, JSON};
 use super::json::{self, Num};
-use super::{CliError, Mode, help};
+use super::{CliError, Mode};
+
+/// the substance table: the formulas and names the other commands accept
+///
+/// Shows each formula, its name, molar mass and what one formula unit adds to the water
+/// (strong ions and acid-base system totals).
+#[derive(Debug, clap::Args)]
+pub struct Args {
+    /// Print the same as a JSON array
+    #[arg(long)]
+    json: bool,
+}
 
 #[derive(Serialize)]
 struct SubstanceOut {
@@ -59,16 +69,9 @@ fn table() -> String {
     s
 }
 
-/// Runs `substances` with the arguments after the command name.
-pub fn run(argv: &[String], mode: Mode) -> Result<String, CliError> {
-    let p = args::parse(argv, &[JSON, HELP])?;
-    if p.has(HELP) {
-        return Ok(help::SUBSTANCES.to_owned());
-    }
-    if let Some(extra) = p.positionals.first() {
-        return Err(CliError::new(format!("substances takes no arguments (got '{extra}')")));
-    }
-    match mode {
+/// Runs `substances`.
+pub fn run(args: Args) -> Result<String, CliError> {
+    match Mode::of(args.json) {
         Mode::Table => Ok(table()),
         Mode::Json => {
             let list: Vec<SubstanceOut> = SUBSTANCES

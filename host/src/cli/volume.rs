@@ -11,7 +11,7 @@ pub fn check_l(what: &str, v: f64) -> Result<(), CliError> {
     if v.is_finite() && v > 0.0 && v <= MAX_L {
         Ok(())
     } else {
-        Err(CliError::new(format!("{what} {v} L must be above 0 and at most {MAX_L} L")))
+        Err(CliError::new(format!("{what} {} L must be above 0 and at most {MAX_L} L", super::format::num(v))))
     }
 }
 

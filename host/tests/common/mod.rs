@@ -78,6 +78,18 @@ pub fn table_error(args: &[&str]) -> String {
     r.stderr
 }
 
+/// Runs a table-mode command whose arguments `clap` refuses: exit 2, nothing on stdout, clap's
+/// message on stderr (`error: ...`, then any tip and the usage), no panic.
+pub fn usage_error(args: &[&str]) -> String {
+    let r = run(args, "");
+    assert_eq!(r.code, 2, "phdose {args:?}: expected exit 2, got {}: {}", r.code, r.stdout);
+    assert!(r.stdout.is_empty(), "stdout should be empty: {}", r.stdout);
+    assert!(r.stderr.starts_with("error: "), "{}", r.stderr);
+    assert!(r.stderr.contains("For more information, try '--help'."), "{}", r.stderr);
+    assert!(!r.stderr.contains("panicked") && !r.stderr.contains("internal error"), "{}", r.stderr);
+    r.stderr
+}
+
 /// A number at `key`.
 pub fn num(v: &Value, key: &str) -> f64 {
     v.get(key).and_then(Value::as_f64).unwrap_or_else(|| panic!("number \"{key}\" missing in {v}"))

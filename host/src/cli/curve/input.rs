@@ -2,30 +2,14 @@
 
 use serde::Deserialize;
 
-use super::example;
+use super::{Args, example};
 use crate::cli::CliError;
-use crate::cli::args::{self, Parsed, Spec};
 use crate::cli::composition::{self, Dissolved};
 use crate::cli::conditions::Conditions;
+use crate::cli::format::num;
 use crate::cli::json::{self, Entries};
 use crate::cli::reagent::{Reagent, ReagentJson};
 use crate::cli::volume;
-
-/// `--sample-ml`.
-pub const SAMPLE_ML: Spec = Spec { name: "--sample-ml", takes_value: true };
-/// `--titrant`.
-pub const TITRANT: Spec = Spec { name: "--titrant", takes_value: true };
-/// `--max-titrant-ml`.
-pub const MAX_TITRANT_ML: Spec = Spec { name: "--max-titrant-ml", takes_value: true };
-/// `--points`.
-pub const POINTS: Spec = Spec { name: "--points", takes_value: true };
-/// `--csv FILE`.
-pub const CSV: Spec = Spec { name: "--csv", takes_value: true };
-/// `--svg FILE`.
-pub const SVG: Spec = Spec { name: "--svg", takes_value: true };
-
-/// The options that describe a request (refused with `--json`; `--points` also with `--example`).
-pub const REQUEST_FLAGS: [Spec; 5] = [SAMPLE_ML, TITRANT, MAX_TITRANT_ML, args::TEMPERATURE, args::ACTIVITY];
 
 /// Default number of curve points.
 pub const DEFAULT_POINTS: usize = 64;
@@ -80,7 +64,8 @@ pub fn check_points(points: f64) -> Result<usize, CliError> {
     let ok = points.is_finite() && points.fract() == 0.0 && (MIN_POINTS as f64..=MAX_POINTS as f64).contains(&points);
     if !ok {
         return Err(CliError::new(format!(
-            "points {points} must be a whole number from {MIN_POINTS} to {MAX_POINTS} (e.g. 64)"
+            "points {} must be a whole number from {MIN_POINTS} to {MAX_POINTS} (e.g. 64)",
+            num(points)
         )));
     }
     Ok(points as usize)
@@ -113,34 +98,25 @@ impl CurveInput {
     }
 
     /// The built-in example; `points` overrides its resolution.
-    pub fn example(points: Option<&str>) -> Result<Self, CliError> {
+    pub fn example(points: Option<f64>) -> Result<Self, CliError> {
         let conditions = Conditions::new(Some(example::TEMPERATURE_C), None)?;
         let sample = composition::resolve(example::DISSOLVED.iter().map(|(f, c)| ((*f).to_owned(), *c)).collect(), "")?;
         let titrant = Reagent::dissolved(vec![(example::TITRANT.0.to_owned(), example::TITRANT.1)], "titrant")?;
-        let points = points.map(|p| args::number("--points", p)).transpose()?.unwrap_or(DEFAULT_POINTS as f64);
+        let points = points.unwrap_or(DEFAULT_POINTS as f64);
         Self::new(conditions, sample, example::SAMPLE_ML / 1000.0, titrant, example::MAX_TITRANT_ML / 1000.0, points)
     }
 
-    /// From the command line: sample `SUBSTANCE=MOL_PER_L` positionals and the options.
-    pub fn from_flags(p: &Parsed) -> Result<Self, CliError> {
-        let entries = composition::parse_positionals(&p.positionals, "no sample", "NaOH=0.001 Na2CO3=0.002")?;
+    /// From the command line: sample `SUBSTANCE=MOL_PER_L` arguments and the options.
+    pub fn from_args(a: &Args) -> Result<Self, CliError> {
+        let missing = |option: &str| CliError::new(format!("missing --{option} (or use --example)"));
+        let entries = composition::require(&a.sample, "no sample", "NaOH=0.001 Na2CO3=0.002")?;
         let sample = composition::resolve(entries, "sample")?;
-        let need = |spec: Spec| -> Result<&str, CliError> {
-            p.value(spec).ok_or_else(|| CliError::new(format!("missing {} (or use --example)", spec.name)))
-        };
-        let sample_ml = args::number(SAMPLE_ML.name, need(SAMPLE_ML)?)?;
-        let titrant = Reagent::from_flag(need(TITRANT)?, None, "titrant")?;
-        let max_ml = args::number(MAX_TITRANT_ML.name, need(MAX_TITRANT_ML)?)?;
-        let points = p.value(POINTS).map(|v| args::number("--points", v)).transpose()?;
-        let conditions = Conditions::from_flags(p.value(args::TEMPERATURE), p.value(args::ACTIVITY), None)?;
-        Self::new(
-            conditions,
-            sample,
-            sample_ml / 1000.0,
-            titrant,
-            max_ml / 1000.0,
-            points.unwrap_or(DEFAULT_POINTS as f64),
-        )
+        let sample_ml = a.sample_ml.ok_or_else(|| missing("sample-ml"))?;
+        let titrant = Reagent::from_flag(a.titrant.as_deref().ok_or_else(|| missing("titrant"))?, None, "titrant")?;
+        let max_ml = a.max_titrant_ml.ok_or_else(|| missing("max-titrant-ml"))?;
+        let conditions = Conditions::from_args(a.conditions, None)?;
+        let points = a.points.unwrap_or(DEFAULT_POINTS as f64);
+        Self::new(conditions, sample, sample_ml / 1000.0, titrant, max_ml / 1000.0, points)
     }
 }
 

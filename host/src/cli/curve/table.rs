@@ -1,13 +1,15 @@
-//! The readable `curve` table, and the SVG plot.
+//! The readable `curve` table, and the figure.
 
 use std::fmt::Write;
+
+use phdose::titration::curve::EquivalencePoint;
 
 use super::report::{CurveReport, model_label};
 use crate::cli::caution::CAUTION;
 use crate::cli::composition;
 use crate::cli::format::{fixed, sci, sig};
 use crate::cli::layout;
-use crate::plot::{Corner, Marker, MarkerSet, Plot, Series, Style};
+use crate::plot::{self, Corner, Figure, LegendAt, Marker, MarkerSet, Panel, Series, Style};
 
 /// Renders the table; `title` (used by `--example`) goes first; `written` lists files written.
 pub fn render(r: &CurveReport, title: Option<&str>, written: &[String]) -> String {
@@ -48,67 +50,58 @@ pub fn render(r: &CurveReport, title: Option<&str>, written: &[String]) -> Strin
     layout::finish(s, written, CAUTION)
 }
 
-/// The plot: pH against titrant mL, curve-found equivalence points as filled circles labelled
-/// with their pH, model points as open rings.
-pub fn plot(r: &CurveReport) -> Plot {
+/// The figure: pH against titrant mL, the equivalence points found on the curve as filled dots
+/// and those from the model as open rings, each labelled with its pH (a model point right at a
+/// curve point is left unlabelled: the curve point's label gives the pH).
+pub fn plot(r: &CurveReport) -> Figure {
     let i = &r.input;
-    let titrant = i.titrant.describe();
-    // Labels go on the side away from the curve: a falling curve leaves the upper right and
+    // Labels and legend go where the curve is not: a falling curve leaves the upper right and
     // lower left free, a rising one the upper left and lower right.
     let falling = match (r.points.first(), r.points.last()) {
         (Some(a), Some(b)) => b.ph < a.ph,
         _ => false,
     };
-    let (curve_side, model_side) =
-        if falling { (Corner::UpperRight, Corner::LowerLeft) } else { (Corner::LowerRight, Corner::UpperLeft) };
-    Plot {
-        title: format!("Titration of a {} mL sample with {titrant}", sig(i.sample_volume_l * 1000.0, 6)),
+    let (curve_side, model_side, legend_at) = if falling {
+        (Corner::UpperRight, Corner::LowerLeft, LegendAt::UpperRight)
+    } else {
+        (Corner::LowerRight, Corner::UpperLeft, LegendAt::LowerRight)
+    };
+    let marker = |e: &EquivalencePoint<f64>, labelled: bool| Marker {
+        x: e.titrant_l * 1000.0,
+        y: e.ph,
+        label: if labelled { format!("pH {}", fixed(e.ph, 2)) } else { String::new() },
+    };
+    let near_curve_point = |m: &EquivalencePoint<f64>| {
+        r.on_curve.iter().any(|e| (e.titrant_l - m.titrant_l).abs() <= 0.02 * i.max_titrant_l)
+    };
+    Figure {
+        title: format!("Titration of a {} mL sample with {}", sig(i.sample_volume_l * 1000.0, 6), i.titrant.describe()),
         x_label: "titrant added (mL)".to_owned(),
-        y_label: "pH".to_owned(),
-        series: vec![Series {
-            name: format!("model curve ({} points)", r.points.len()),
-            points: r.points.iter().map(|p| (p.titrant_l * 1000.0, p.ph)).collect(),
-            style: Style::Line,
-            color: "#1f4e9c",
+        panels: vec![Panel {
+            y_label: "pH".to_owned(),
+            series: vec![Series {
+                name: format!("model curve ({} points)", r.points.len()),
+                points: r.points.iter().map(|p| (p.titrant_l * 1000.0, p.ph)).collect(),
+                style: Style::Line,
+                color: plot::BLUE,
+            }],
+            marker_sets: vec![
+                MarkerSet {
+                    name: "equivalence point on the curve".to_owned(),
+                    color: plot::RED,
+                    filled: true,
+                    label_at: curve_side,
+                    markers: r.on_curve.iter().map(|e| marker(e, true)).collect(),
+                },
+                MarkerSet {
+                    name: "equivalence point from the model".to_owned(),
+                    color: plot::GREEN,
+                    filled: false,
+                    label_at: model_side,
+                    markers: r.model.iter().map(|e| marker(e, !near_curve_point(e))).collect(),
+                },
+            ],
+            legend_at,
         }],
-        marker_sets: vec![
-            MarkerSet {
-                name: "equivalence point on the curve".to_owned(),
-                class: "eq-curve",
-                color: "#c0392b",
-                filled: true,
-                label_at: curve_side,
-                markers: r
-                    .on_curve
-                    .iter()
-                    .map(|e| Marker { x: e.titrant_l * 1000.0, y: e.ph, label: format!("pH {}", fixed(e.ph, 2)) })
-                    .collect(),
-            },
-            MarkerSet {
-                name: "equivalence point from the model".to_owned(),
-                class: "eq-model",
-                color: "#2e8b57",
-                filled: false,
-                label_at: model_side,
-                markers: r
-                    .model
-                    .iter()
-                    .filter(|m| {
-                        // Label a model point only when no curve point sits near it (else the
-                        // curve point's label already gives the pH).
-                        r.on_curve.iter().all(|e| (e.titrant_l - m.titrant_l).abs() > 0.02 * i.max_titrant_l)
-                    })
-                    .map(|e| Marker { x: e.titrant_l * 1000.0, y: e.ph, label: format!("pH {}", fixed(e.ph, 2)) })
-                    .chain(
-                        r.model
-                            .iter()
-                            .filter(|m| {
-                                r.on_curve.iter().any(|e| (e.titrant_l - m.titrant_l).abs() <= 0.02 * i.max_titrant_l)
-                            })
-                            .map(|e| Marker { x: e.titrant_l * 1000.0, y: e.ph, label: String::new() }),
-                    )
-                    .collect(),
-            },
-        ],
     }
 }

@@ -2,33 +2,15 @@
 
 use serde::Deserialize;
 
-use super::example;
+use super::{Args, example};
 use crate::cli::CliError;
-use crate::cli::args::{self, Parsed, Spec};
 use crate::cli::conditions::Conditions;
 use crate::cli::files;
+use crate::cli::format::num;
 use crate::cli::json;
 use crate::cli::reagent::{Reagent, ReagentJson};
+use crate::cli::value::number;
 use crate::cli::volume;
-
-/// `--data FILE`.
-pub const DATA: Spec = Spec { name: "--data", takes_value: true };
-/// `--titrant NaOH=0.05`.
-pub const TITRANT: Spec = Spec { name: "--titrant", takes_value: true };
-/// `--titrant-json '{"substance": ...}'`.
-pub const TITRANT_JSON: Spec = Spec { name: "--titrant-json", takes_value: true };
-/// `--sample-ml`.
-pub const SAMPLE_ML: Spec = Spec { name: "--sample-ml", takes_value: true };
-/// `--carbonate`.
-pub const CARBONATE: Spec = Spec { name: "--carbonate", takes_value: false };
-/// `--buffers 0|1|2`.
-pub const BUFFERS: Spec = Spec { name: "--buffers", takes_value: true };
-/// `--svg FILE`.
-pub const SVG: Spec = Spec { name: "--svg", takes_value: true };
-
-/// The options that describe a request (refused with `--json` and `--example`).
-pub const REQUEST_FLAGS: [Spec; 7] =
-    [DATA, TITRANT, TITRANT_JSON, SAMPLE_ML, CARBONATE, args::TEMPERATURE, args::ACTIVITY];
 
 /// Most lab points accepted.
 pub const MAX_POINTS: usize = 2000;
@@ -76,16 +58,16 @@ pub fn check_buffers(n: f64) -> Result<u8, CliError> {
     if n == 0.0 || n == 1.0 || n == 2.0 {
         Ok(n as u8)
     } else {
-        Err(CliError::new(format!("buffers {n} must be 0, 1 or 2")))
+        Err(CliError::new(format!("buffers {} must be 0, 1 or 2", num(n))))
     }
 }
 
 fn check_point(line: &str, ml: f64, ph: f64) -> Result<(), CliError> {
     if ml < 0.0 {
-        return Err(CliError::new(format!("{line}: titrant volume {ml} mL is negative")));
+        return Err(CliError::new(format!("{line}: titrant volume {} mL is negative", num(ml))));
     }
     if !(0.0..=14.0).contains(&ph) {
-        return Err(CliError::new(format!("{line}: pH {ph} is outside 0-14")));
+        return Err(CliError::new(format!("{line}: pH {} is outside 0-14", num(ph))));
     }
     Ok(())
 }
@@ -130,8 +112,8 @@ pub fn parse_csv(text: &str, source: &str) -> Result<Vec<(f64, f64)>, CliError> 
         }
         header_allowed = false;
         let (ml_text, ph_text) = if swapped { (b, a) } else { (a, b) };
-        let ml = args::number(&format!("{line}, titrant_ml"), ml_text)?;
-        let ph = args::number(&format!("{line}, ph"), ph_text)?;
+        let ml = number(&format!("{line}, titrant_ml"), ml_text)?;
+        let ph = number(&format!("{line}, ph"), ph_text)?;
         check_point(&line, ml, ph)?;
         if points.len() >= MAX_POINTS {
             return Err(CliError::new(format!("{source}: more than {MAX_POINTS} points")));
@@ -188,41 +170,33 @@ impl FitInput {
     }
 
     /// The built-in example; `buffers` overrides its buffer count.
-    pub fn example(buffers: Option<&str>) -> Result<Self, CliError> {
+    pub fn example(buffers: Option<f64>) -> Result<Self, CliError> {
         let conditions = Conditions::new(Some(example::TEMPERATURE_C), None)?;
         let titrant = Reagent::dissolved(vec![(example::TITRANT.0.to_owned(), example::TITRANT.1)], "titrant")?;
         let points = parse_csv(example::DATA, "fit-example.csv")?;
-        let buffers =
-            buffers.map(|b| check_buffers(args::number("--buffers", b)?)).transpose()?.unwrap_or(example::BUFFERS);
+        let buffers = buffers.map(check_buffers).transpose()?.unwrap_or(example::BUFFERS);
         Self::new(conditions, example::SAMPLE_ML / 1000.0, titrant, points, example::CARBONATE, buffers)
     }
 
     /// From the command line.
-    pub fn from_flags(p: &Parsed) -> Result<Self, CliError> {
-        if let Some(extra) = p.positionals.first() {
-            return Err(CliError::new(format!("fit takes no positional arguments (got '{extra}'); use --data FILE")));
-        }
-        let path = p.value(DATA).ok_or_else(|| CliError::new("missing --data FILE (or use --example)"))?;
+    pub fn from_args(a: &Args) -> Result<Self, CliError> {
+        let path = a.data.as_deref().ok_or_else(|| CliError::new("missing --data FILE (or use --example)"))?;
         let points = parse_csv(&files::read(path, MAX_FILE_BYTES, "data file")?, path)?;
-        let titrant = match (p.value(TITRANT), p.value(TITRANT_JSON)) {
-            (Some(t), None) => Reagent::from_flag(t, None, "titrant")?,
+        let titrant = match (&a.titrant, &a.titrant_json) {
+            (Some(t), _) => Reagent::from_flag(t, None, "titrant")?,
             (None, Some(j)) => {
                 let r: ReagentJson =
                     serde_json::from_str(j).map_err(|e| CliError::new(format!("--titrant-json: invalid JSON: {e}")))?;
                 Reagent::from_json(r, "titrant")?
             }
-            (Some(_), Some(_)) => return Err(CliError::new("give --titrant or --titrant-json, not both")),
             (None, None) => {
                 return Err(CliError::new("missing --titrant (e.g. --titrant NaOH=0.05) or --titrant-json"));
             }
         };
-        let sample_ml = args::number(
-            SAMPLE_ML.name,
-            p.value(SAMPLE_ML).ok_or_else(|| CliError::new("missing --sample-ml (the sample volume titrated)"))?,
-        )?;
-        let buffers = p.value(BUFFERS).map(|b| check_buffers(args::number("--buffers", b)?)).transpose()?;
-        let conditions = Conditions::from_flags(p.value(args::TEMPERATURE), p.value(args::ACTIVITY), None)?;
-        Self::new(conditions, sample_ml / 1000.0, titrant, points, p.has(CARBONATE), buffers.unwrap_or(0))
+        let sample_ml = a.sample_ml.ok_or_else(|| CliError::new("missing --sample-ml (the sample volume titrated)"))?;
+        let buffers = a.buffers.map(check_buffers).transpose()?.unwrap_or(0);
+        let conditions = Conditions::from_args(a.conditions, None)?;
+        Self::new(conditions, sample_ml / 1000.0, titrant, points, a.carbonate, buffers)
     }
 }
 
@@ -261,6 +235,6 @@ mod tests {
     fn example_loads() {
         let e = FitInput::example(None).unwrap();
         assert!(e.points_ml.len() >= 20 && e.carbonate && e.buffers == 1);
-        assert!(FitInput::example(Some("3")).is_err());
+        assert!(FitInput::example(Some(3.0)).is_err());
     }
 }

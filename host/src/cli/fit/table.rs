@@ -1,4 +1,4 @@
-//! The readable `fit` report, and the SVG plot of data against the fit.
+//! The readable `fit` report, and the figure of data against the fit.
 
 use std::fmt::Write;
 
@@ -6,7 +6,7 @@ use super::report::FitReport;
 use crate::cli::caution::CAUTION;
 use crate::cli::format::{fixed, sig};
 use crate::cli::layout;
-use crate::plot::{Plot, Series, Style};
+use crate::plot::{self, Figure, LegendAt, Panel, Series, Style};
 
 const LABEL: usize = 18;
 
@@ -74,31 +74,38 @@ pub fn render(r: &FitReport, title: Option<&str>, written: &[String]) -> String 
     layout::finish(s, written, CAUTION)
 }
 
-/// Lab points as markers, the fitted model as a line.
-pub fn plot(r: &FitReport) -> Plot {
+/// The figure: lab points as squares, the fitted model as a line.
+pub fn plot(r: &FitReport) -> Figure {
     let i = &r.input;
-    Plot {
+    let rising = match (i.points_ml.first(), i.points_ml.last()) {
+        (Some(a), Some(b)) => b.1 >= a.1,
+        _ => true,
+    };
+    Figure {
         title: format!(
             "Lab titration ({} mL with {}) and the fitted model",
             sig(i.sample_volume_l * 1000.0, 6),
             i.titrant.describe()
         ),
         x_label: "titrant added (mL)".to_owned(),
-        y_label: "pH".to_owned(),
-        series: vec![
-            Series {
-                name: format!("fitted model (RMS {} pH)", sig(r.result.rms_ph, 2)),
-                points: r.model_curve.iter().map(|p| (p.titrant_l * 1000.0, p.ph)).collect(),
-                style: Style::Line,
-                color: "#1f4e9c",
-            },
-            Series {
-                name: format!("lab points ({})", i.points_ml.len()),
-                points: i.points_ml.clone(),
-                style: Style::Points,
-                color: "#c0392b",
-            },
-        ],
-        marker_sets: Vec::new(),
+        panels: vec![Panel {
+            y_label: "pH".to_owned(),
+            series: vec![
+                Series {
+                    name: format!("fitted model (RMS {} pH)", sig(r.result.rms_ph, 2)),
+                    points: r.model_curve.iter().map(|p| (p.titrant_l * 1000.0, p.ph)).collect(),
+                    style: Style::Line,
+                    color: plot::BLUE,
+                },
+                Series {
+                    name: format!("lab points ({})", i.points_ml.len()),
+                    points: i.points_ml.clone(),
+                    style: Style::Points,
+                    color: plot::RED,
+                },
+            ],
+            marker_sets: Vec::new(),
+            legend_at: if rising { LegendAt::LowerRight } else { LegendAt::UpperRight },
+        }],
     }
 }

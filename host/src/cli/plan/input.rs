@@ -4,34 +4,12 @@ use phdose::titration::{DoseRequest, Pump};
 use phdose::units::{InvalidInput, LitresPerHour, Quantity};
 use serde::Deserialize;
 
-use super::example;
+use super::{Args, example};
 use crate::cli::CliError;
-use crate::cli::args::{self, Parsed, Spec};
 use crate::cli::composition::{self, Dissolved};
 use crate::cli::conditions::Conditions;
 use crate::cli::json::{self, Entries};
 use crate::cli::reagent::{Reagent, ReagentJson};
-
-/// `--flow-l-per-h`: influent flow.
-pub const FLOW: Spec = Spec { name: "--flow-l-per-h", takes_value: true };
-/// `--reagent`: `NaOH=6.25` (mol/L) or `NaOH=25%`.
-pub const REAGENT: Spec = Spec { name: "--reagent", takes_value: true };
-/// `--reagent-density`: kg/L, with a mass-percent reagent.
-pub const REAGENT_DENSITY: Spec = Spec { name: "--reagent-density", takes_value: true };
-/// `--setpoint-ph`.
-pub const SETPOINT: Spec = Spec { name: "--setpoint-ph", takes_value: true };
-/// `--pump-max-l-per-h`.
-pub const PUMP_MAX: Spec = Spec { name: "--pump-max-l-per-h", takes_value: true };
-/// `--pump-step-l-per-h`.
-pub const PUMP_STEP: Spec = Spec { name: "--pump-step-l-per-h", takes_value: true };
-/// `--band-ph`.
-pub const BAND: Spec = Spec { name: "--band-ph", takes_value: true };
-/// `--no-pump`: drop the example's pump (and with it the pump checks).
-pub const NO_PUMP: Spec = Spec { name: "--no-pump", takes_value: false };
-
-/// The options that describe a request (refused with `--json`).
-pub const REQUEST_FLAGS: [Spec; 10] =
-    [FLOW, REAGENT, REAGENT_DENSITY, SETPOINT, PUMP_MAX, PUMP_STEP, BAND, NO_PUMP, args::TEMPERATURE, args::ACTIVITY];
 
 /// Shape of the JSON request, shown when stdin is empty.
 pub const JSON_EXAMPLE: &str = r#"{"influent": {"flow_l_per_h": 1200, "dissolved": {"NaHCO3": 0.002, "HCl": 0.001}}, "reagent": {"dissolved": {"NaOH": 6.25}}, "setpoint_ph": 7.0, "pump": {"max_l_per_h": 10, "step_l_per_h": 0.01}, "band_ph": 0.3}"#;
@@ -124,70 +102,39 @@ impl PlanInput {
         Self::new(conditions, influent, r.influent.flow_l_per_h, reagent, r.setpoint_ph, pump, r.band_ph)
     }
 
-    /// From the command line: influent `SUBSTANCE=MOL_PER_L` positionals and the options; with
-    /// `example`, the built-in scenario supplies every value an option does not override.
-    pub fn from_flags(p: &Parsed, example: bool) -> Result<Self, CliError> {
-        let num = |spec: Spec| p.value(spec).map(|v| args::number(spec.name, v)).transpose();
-        let missing = |spec: Spec| CliError::new(format!("missing {} (or use --example)", spec.name));
-
-        let influent = if example {
-            if let Some(extra) = p.positionals.first() {
-                return Err(CliError::new(format!("--example takes no influent substances (got '{extra}')")));
-            }
+    /// From the command line: influent `SUBSTANCE=MOL_PER_L` arguments and the options; with
+    /// `--example`, the built-in scenario supplies every value an option does not override.
+    pub fn from_args(a: &Args) -> Result<Self, CliError> {
+        let missing = |option: &str| CliError::new(format!("missing --{option} (or use --example)"));
+        let influent = if a.example {
             example::DISSOLVED.iter().map(|(f, c)| ((*f).to_owned(), *c)).collect()
         } else {
-            composition::parse_positionals(&p.positionals, "no influent", "NaHCO3=0.002 HCl=0.001")?
+            composition::require(&a.influent, "no influent", "NaHCO3=0.002 HCl=0.001")?
         };
         let influent = composition::resolve(influent, "influent")?;
-
-        let default_temperature_c = example.then_some(example::TEMPERATURE_C);
-        let conditions =
-            Conditions::from_flags(p.value(args::TEMPERATURE), p.value(args::ACTIVITY), default_temperature_c)?;
-        let flow = match num(FLOW)? {
-            Some(f) => f,
-            None if example => example::FLOW_L_PER_H,
-            None => return Err(missing(FLOW)),
+        let conditions = Conditions::from_args(a.conditions, a.example.then_some(example::TEMPERATURE_C))?;
+        let default = |value: f64| if a.example { Some(value) } else { None };
+        let flow = a.flow_l_per_h.or(default(example::FLOW_L_PER_H)).ok_or_else(|| missing("flow-l-per-h"))?;
+        let reagent = match &a.reagent {
+            Some(text) => Reagent::from_flag(text, a.reagent_density, "reagent")?,
+            None if a.example => Reagent::grade(example::REAGENT.0, example::REAGENT.1, None, "reagent")?,
+            None => return Err(missing("reagent")),
         };
-        let reagent = match p.value(REAGENT) {
-            Some(text) => Reagent::from_flag(text, p.value(REAGENT_DENSITY), "reagent")?,
-            None if example => {
-                if p.has(REAGENT_DENSITY) {
-                    return Err(CliError::new("--reagent-density goes with --reagent NAME=PERCENT%"));
-                }
-                Reagent::grade(example::REAGENT.0, example::REAGENT.1, None, "reagent")?
-            }
-            None => return Err(missing(REAGENT)),
-        };
-        let setpoint = match num(SETPOINT)? {
-            Some(s) => s,
-            None if example => example::SETPOINT_PH,
-            None => return Err(missing(SETPOINT)),
-        };
-        let pump = if p.has(NO_PUMP) {
-            if p.has(PUMP_MAX) || p.has(PUMP_STEP) {
-                return Err(CliError::new("--no-pump cannot be combined with --pump-max-l-per-h/--pump-step-l-per-h"));
-            }
-            None
-        } else {
-            let default = example.then_some(example::PUMP);
-            match (num(PUMP_MAX)?, num(PUMP_STEP)?, default) {
-                (Some(m), Some(s), _) => Some((m, s)),
-                (Some(m), None, Some((_, s))) => Some((m, s)),
-                (None, Some(s), Some((m, _))) => Some((m, s)),
-                (None, None, Some((m, s))) => Some((m, s)),
-                (None, None, None) => None,
-                _ => {
-                    return Err(CliError::new(
-                        "give the pump as both --pump-max-l-per-h and --pump-step-l-per-h, or neither",
-                    ));
-                }
+        let setpoint = a.setpoint_ph.or(default(example::SETPOINT_PH)).ok_or_else(|| missing("setpoint-ph"))?;
+        let (example_max, example_step) = example::PUMP;
+        let max = a.pump_max_l_per_h.or(default(example_max));
+        let step = a.pump_step_l_per_h.or(default(example_step));
+        let pump = match (max, step) {
+            _ if a.no_pump => None,
+            (Some(max_l_per_h), Some(step_l_per_h)) => Some((max_l_per_h, step_l_per_h)),
+            (None, None) => None,
+            _ => {
+                return Err(CliError::new(
+                    "give the pump as both --pump-max-l-per-h and --pump-step-l-per-h, or neither",
+                ));
             }
         };
-        let band = match num(BAND)? {
-            Some(b) => Some(b),
-            None if example => Some(example::BAND_PH),
-            None => None,
-        };
+        let band = a.band_ph.or(default(example::BAND_PH));
         Self::new(conditions, influent, flow, reagent, setpoint, pump, band)
     }
 }
@@ -196,14 +143,17 @@ impl PlanInput {
 mod tests {
     #![allow(clippy::unwrap_used)]
     use super::*;
-    use crate::cli::args::{HELP, JSON};
+    use clap::Parser;
+
+    #[derive(Parser)]
+    struct Plan {
+        #[command(flatten)]
+        args: Args,
+    }
 
     fn flags(argv: &[&str]) -> Result<PlanInput, CliError> {
-        let mut specs = REQUEST_FLAGS.to_vec();
-        specs.extend([JSON, HELP]);
-        let argv: Vec<String> = argv.iter().map(|s| (*s).to_owned()).collect();
-        let p = args::parse(&argv, &specs).unwrap();
-        PlanInput::from_flags(&p, false)
+        let plan = Plan::try_parse_from(std::iter::once("plan").chain(argv.iter().copied())).unwrap();
+        PlanInput::from_args(&plan.args)
     }
 
     #[test]

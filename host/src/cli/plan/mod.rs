@@ -13,23 +13,111 @@ mod table;
 
 use std::io::Read;
 
-use super::args::{self, EXAMPLE, HELP, JSON};
-use super::{CliError, Mode, help, json as json_io};
-use input::{PlanInput, REQUEST_FLAGS};
+use super::conditions::ConditionArgs;
+use super::{CliError, Mode, json as json_io, value};
+use input::PlanInput;
 
-/// Runs `plan` with the arguments after the command name.
-pub fn run(argv: &[String], mode: Mode, stdin: &mut dyn Read) -> Result<String, CliError> {
-    let mut specs = REQUEST_FLAGS.to_vec();
-    specs.extend([JSON, EXAMPLE, HELP]);
-    let p = args::parse(argv, &specs)?;
-    if p.has(HELP) {
-        return Ok(help::PLAN.to_owned());
+const AFTER_HELP: &str = "\
+The influent (SUBSTANCE=MOL_PER_L) flows at --flow-l-per-h into a mixing point where the
+reagent is dosed. --reagent takes NAME=MOL_PER_L[,NAME=MOL_PER_L...] or NAME=PERCENT% (one
+substance as bought; the density comes from --reagent-density or, for NaOH 25/50 %, HCl 32/36 %
+and H2SO4 96/98 %, from the built-in grade table at 20 °C). The reagent is taken at the influent's
+temperature. --example: the rinse-water neutralization skid of a fictional plating shop (18 °C,
+1200 L/h, 25 % caustic, pump 10 L/h with 0.01 L/h steps, band 0.3 pH); any option, or --no-pump,
+changes it.
+
+JSON request (temperature_c, activity, pump and band_ph optional):
+  {\"temperature_c\": 25, \"activity\": \"davies\",
+   \"influent\": {\"flow_l_per_h\": 1200, \"dissolved\": {\"NaHCO3\": 0.002, \"HCl\": 0.001}},
+   \"reagent\": {\"dissolved\": {\"NaOH\": 6.25}},
+   \"setpoint_ph\": 7.0, \"pump\": {\"max_l_per_h\": 10, \"step_l_per_h\": 0.01}, \"band_ph\": 0.3}
+  The reagent may instead be {\"substance\": \"NaOH\", \"mass_percent\": 25, \"density_kg_per_l\": 1.274}
+  (density optional for the grades above).
+
+JSON result (stable keys first):
+  reachable (bool), reagent_flow_l_per_h (L/h, null when unreachable), mixture_buffer_capacity
+  (mol/L per pH, at the setpoint), gain_ph_per_l_per_h (pH per L/h), verdicts (readable strings:
+  \"ok\", \"unreachable: ...\", \"beyond pump capacity: ...\", \"too steep: ...\").
+  Also: all_clear, setpoint_ph, influent_ph, influent_flow_l_per_h, influent_dissolved (formula ->
+  mol/L), gain_ph_per_step (pH change of one pump step, a real solve), reagent_mol_per_l
+  (one-substance reagents), reagent, mixture_ionic_strength, rounds, checks [{kind:
+  beyond_pump|too_steep, ...}], unreachable ({kind: wrong_direction|beyond_reagent, limit_ph} or
+  null), stage_advice, pump, band_ph, temperature_c, activity, notes, caution.
+
+Exit codes: 0 when a plan was worked out, whatever the verdicts (check `reachable` and
+`all_clear`); 2 for input and solver errors.
+
+stage_advice is common practice (a rule of thumb from the influent pH and the setpoint), not a
+computed result. The plan is a model estimate: the flow switch, independent pH cut-outs and a
+manual reset must exist in hardware (SAFETY.md).
+
+Examples:
+  phdose plan H2SO4=0.0012 NaHCO3=0.001 --flow-l-per-h 1200 --reagent NaOH=25% --setpoint-ph 7 \\
+              --pump-max-l-per-h 10 --pump-step-l-per-h 0.01 --band-ph 0.3
+  phdose plan --json < request.json
+  phdose plan --example --setpoint-ph 8.5 --no-pump";
+
+/// feed-forward reagent flow for a setpoint, with process gain, pump and steepness checks
+#[derive(Debug, clap::Args)]
+#[command(after_help = AFTER_HELP)]
+pub struct Args {
+    /// What the influent carries, mol/L
+    #[arg(value_name = "SUBSTANCE=MOL_PER_L", value_parser = value::substance_pair)]
+    pub influent: Vec<(String, f64)>,
+    /// Influent flow, L/h
+    #[arg(long, value_name = "L_PER_H", value_parser = value::finite_number, allow_negative_numbers = true)]
+    pub flow_l_per_h: Option<f64>,
+    /// The reagent: NAME=MOL_PER_L[,NAME=MOL_PER_L...] or NAME=PERCENT% (e.g. NaOH=25%)
+    #[arg(long, value_name = "REAGENT")]
+    pub reagent: Option<String>,
+    /// Density of a mass-percent reagent, kg/L [default: from the grade table]
+    #[arg(long, value_name = "KG_PER_L", value_parser = value::finite_number, requires = "reagent")]
+    pub reagent_density: Option<f64>,
+    /// Target pH
+    #[arg(long, value_name = "PH", value_parser = value::finite_number, allow_negative_numbers = true)]
+    pub setpoint_ph: Option<f64>,
+    /// Metering pump's maximum flow, L/h (give the step too)
+    #[arg(long, value_name = "L_PER_H", value_parser = value::finite_number, allow_negative_numbers = true)]
+    pub pump_max_l_per_h: Option<f64>,
+    /// Metering pump's smallest step, L/h (give the maximum too)
+    #[arg(long, value_name = "L_PER_H", value_parser = value::finite_number, allow_negative_numbers = true)]
+    pub pump_step_l_per_h: Option<f64>,
+    /// Control band (full width), pH
+    #[arg(long, value_name = "PH", value_parser = value::finite_number, allow_negative_numbers = true)]
+    pub band_ph: Option<f64>,
+    /// Plan without a pump (drops the example's pump and the pump checks)
+    #[arg(long, conflicts_with_all = ["pump_max_l_per_h", "pump_step_l_per_h"])]
+    pub no_pump: bool,
+    #[command(flatten)]
+    pub conditions: ConditionArgs,
+    /// Read the request as JSON from stdin and print the result as JSON
+    #[arg(long)]
+    pub json: bool,
+    /// Plan the built-in invented scenario (the options above change it)
+    #[arg(long, conflicts_with = "influent")]
+    pub example: bool,
+}
+
+impl Args {
+    /// Whether any part of a request was given on the command line.
+    fn has_request(&self) -> bool {
+        let numbers =
+            [self.flow_l_per_h, self.setpoint_ph, self.pump_max_l_per_h, self.pump_step_l_per_h, self.band_ph];
+        !self.influent.is_empty()
+            || self.reagent.is_some()
+            || self.no_pump
+            || self.conditions.given()
+            || numbers.iter().any(Option::is_some)
     }
-    let (request, title) = if p.has(EXAMPLE) {
-        (PlanInput::from_flags(&p, true)?, Some(example::TITLE))
+}
+
+/// Runs `plan`.
+pub fn run(args: Args, stdin: &mut dyn Read) -> Result<String, CliError> {
+    let mode = Mode::of(args.json);
+    let (request, title) = if args.example {
+        (PlanInput::from_args(&args)?, Some(example::TITLE))
     } else if mode == Mode::Json {
-        let flags = p.given(&REQUEST_FLAGS);
-        if !p.positionals.is_empty() || !flags.is_empty() {
+        if args.has_request() {
             return Err(CliError::new(
                 "with --json the whole request is read as JSON from stdin; put influent, reagent, setpoint_ph, \
                  pump and band_ph in the JSON object instead of the command line",
@@ -37,7 +125,7 @@ pub fn run(argv: &[String], mode: Mode, stdin: &mut dyn Read) -> Result<String, 
         }
         (PlanInput::from_json(&json_io::read_input(stdin)?)?, None)
     } else {
-        (PlanInput::from_flags(&p, false)?, None)
+        (PlanInput::from_args(&args)?, None)
     };
     let report = report::compute(request)?;
     match mode {

@@ -3,8 +3,8 @@
 use serde::Deserialize;
 
 use crate::cli::CliError;
-use crate::cli::args;
-use crate::cli::conditions::Conditions;
+use crate::cli::conditions::{ConditionArgs, Conditions};
+use crate::cli::format::num;
 use crate::cli::json;
 
 /// Shape of the JSON request, shown when stdin is empty.
@@ -37,7 +37,7 @@ impl SaltInput {
     /// Checks the concentration (finite and > 0: a salt analysis of no salt means nothing).
     pub fn new(salt: String, mol_per_l: f64, conditions: Conditions) -> Result<Self, CliError> {
         if !(mol_per_l.is_finite() && mol_per_l > 0.0) {
-            return Err(CliError::new(format!("concentration {mol_per_l} mol/L must be a number above 0")));
+            return Err(CliError::new(format!("concentration {} mol/L must be a number above 0", num(mol_per_l))));
         }
         Ok(Self { salt, mol_per_l, conditions })
     }
@@ -49,20 +49,16 @@ impl SaltInput {
         Self::new(r.salt, r.concentration_mol_per_l, conditions)
     }
 
-    /// From `SALT MOL_PER_L` arguments and the optional flag values.
-    pub fn from_flags(
-        positionals: &[String],
-        temperature_c: Option<&str>,
-        activity: Option<&str>,
+    /// From the `SALT MOL_PER_L` arguments and the condition options.
+    pub fn from_args(
+        salt: Option<String>,
+        mol_per_l: Option<f64>,
+        conditions: ConditionArgs,
     ) -> Result<Self, CliError> {
-        let [salt, amount] = positionals else {
-            return Err(CliError::new(format!(
-                "expected SALT MOL_PER_L (e.g. `phdose salt Na2HPO4 0.05`), got {} argument(s)",
-                positionals.len()
-            )));
+        let (Some(salt), Some(mol_per_l)) = (salt, mol_per_l) else {
+            return Err(CliError::new("expected SALT MOL_PER_L (e.g. `phdose salt Na2HPO4 0.05`)"));
         };
-        let mol_per_l = args::number("concentration", amount)?;
-        Self::new(salt.clone(), mol_per_l, Conditions::from_flags(temperature_c, activity, None)?)
+        Self::new(salt, mol_per_l, Conditions::from_args(conditions, None)?)
     }
 }
 
@@ -74,7 +70,7 @@ mod tests {
     #[test]
     fn json_and_flags_agree() {
         let a = SaltInput::from_json(r#"{"salt": "Na2HPO4", "concentration_mol_per_l": 0.05}"#).unwrap();
-        let b = SaltInput::from_flags(&["Na2HPO4".to_owned(), "0.05".to_owned()], None, None).unwrap();
+        let b = SaltInput::from_args(Some("Na2HPO4".to_owned()), Some(0.05), ConditionArgs::default()).unwrap();
         assert_eq!(a, b);
     }
 
@@ -83,6 +79,8 @@ mod tests {
         assert!(SaltInput::from_json(r#"{"salt": "Na2HPO4"}"#).is_err());
         assert!(SaltInput::from_json(r#"{"salt": "Na2HPO4", "concentration_mol_per_l": 0}"#).is_err());
         assert!(SaltInput::from_json(r#"{"salt": "Na2HPO4", "concentration_mol_per_l": -0.1}"#).is_err());
-        assert!(SaltInput::from_flags(&["Na2HPO4".to_owned()], None, None).is_err());
+        assert!(SaltInput::from_args(Some("Na2HPO4".to_owned()), None, ConditionArgs::default()).is_err());
+        let e = SaltInput::from_json(r#"{"salt": "Na2HPO4", "concentration_mol_per_l": -1e-300}"#).unwrap_err();
+        assert_eq!(e.message(), "concentration -1e-300 mol/L must be a number above 0");
     }
 }

@@ -5,7 +5,7 @@ use serde::Deserialize;
 use crate::cli::CliError;
 use crate::cli::composition;
 pub use crate::cli::composition::Dissolved;
-use crate::cli::conditions::Conditions;
+use crate::cli::conditions::{ConditionArgs, Conditions};
 use crate::cli::json::{self, Entries};
 
 /// Shape of the JSON request, shown when stdin is empty.
@@ -44,14 +44,10 @@ impl SpeciateInput {
         Self::new(conditions, r.dissolved.0)
     }
 
-    /// From `SUBSTANCE=MOL_PER_L` arguments and the optional flag values.
-    pub fn from_flags(
-        positionals: &[String],
-        temperature_c: Option<&str>,
-        activity: Option<&str>,
-    ) -> Result<Self, CliError> {
-        let entries = composition::parse_positionals(positionals, "nothing dissolved", "NaHCO3=0.002")?;
-        Self::new(Conditions::from_flags(temperature_c, activity, None)?, entries)
+    /// From the `SUBSTANCE=MOL_PER_L` arguments and the condition options.
+    pub fn from_args(dissolved: &[(String, f64)], conditions: ConditionArgs) -> Result<Self, CliError> {
+        let entries = composition::require(dissolved, "nothing dissolved", "NaHCO3=0.002")?;
+        Self::new(Conditions::from_args(conditions, None)?, entries)
     }
 }
 
@@ -59,6 +55,7 @@ impl SpeciateInput {
 mod tests {
     #![allow(clippy::unwrap_used)]
     use super::*;
+    use crate::cli::conditions::ActivityModel;
     use phdose::chem::Activity;
 
     #[test]
@@ -70,13 +67,13 @@ mod tests {
     }
 
     #[test]
-    fn flags() {
-        let args = ["NaHCO3=2e-3".to_owned(), "H2SO4=0.0006".to_owned()];
-        let i = SpeciateInput::from_flags(&args, Some("18"), Some("ideal")).unwrap();
+    fn from_the_command_line() {
+        let dissolved = [("NaHCO3".to_owned(), 2e-3), ("H2SO4".to_owned(), 6e-4)];
+        let conditions = ConditionArgs { temperature_c: Some(18.0), activity: Some(ActivityModel::Ideal) };
+        let i = SpeciateInput::from_args(&dissolved, conditions).unwrap();
         assert_eq!(i.conditions.activity, Activity::Ideal);
         assert_eq!(i.dissolved.iter().map(|d| d.mol_per_l).collect::<Vec<_>>(), vec![2e-3, 6e-4]);
-        assert!(SpeciateInput::from_flags(&["NaHCO3".to_owned()], None, None).is_err());
-        assert!(SpeciateInput::from_flags(&[], None, None).is_err());
+        assert!(SpeciateInput::from_args(&[], ConditionArgs::default()).is_err());
     }
 
     #[test]
