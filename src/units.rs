@@ -25,9 +25,21 @@ pub struct TemperatureOutOfRange {
     pub celsius: f64,
 }
 
+/// A number as the crate's messages print it: plainly between 1e-4 and 1e6 (and 0, NaN, ±inf),
+/// in scientific notation otherwise, so that 1e300 is not echoed as 301 digits.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Compact(pub f64);
+
+impl core::fmt::Display for Compact {
+    fn fmt(&self, f: &mut core::fmt::Formatter<'_>) -> core::fmt::Result {
+        let v = self.0;
+        if v == 0.0 || !v.is_finite() || (1e-4..1e6).contains(&v.abs()) { write!(f, "{v}") } else { write!(f, "{v:e}") }
+    }
+}
+
 impl core::fmt::Display for TemperatureOutOfRange {
     fn fmt(&self, f: &mut core::fmt::Formatter<'_>) -> core::fmt::Result {
-        write!(f, "temperature {} °C is outside the valid range {MIN_CELSIUS}–{MAX_CELSIUS} °C", self.celsius)
+        write!(f, "temperature {} °C is outside the valid range {MIN_CELSIUS}–{MAX_CELSIUS} °C", Compact(self.celsius))
     }
 }
 
@@ -111,13 +123,7 @@ pub struct InvalidInput {
 impl core::fmt::Display for InvalidInput {
     fn fmt(&self, f: &mut core::fmt::Formatter<'_>) -> core::fmt::Result {
         let (name, range) = self.quantity.describe();
-        let v = self.value;
-        // Scientific notation for values a fixed format would print as hundreds of digits.
-        if v.is_finite() && v != 0.0 && !(1e-4..1e6).contains(&v.abs()) {
-            write!(f, "{name} {v:e} is outside the valid range {range}")
-        } else {
-            write!(f, "{name} {v} is outside the valid range {range}")
-        }
+        write!(f, "{name} {} is outside the valid range {range}", Compact(self.value))
     }
 }
 
@@ -221,6 +227,12 @@ mod tests {
 
     #[test]
     fn messages_use_scientific_notation_for_extreme_values() {
+        assert_eq!(std::format!("{}", Compact(1e300)), "1e300");
+        assert_eq!(std::format!("{}", Compact(-1e-300)), "-1e-300");
+        assert_eq!(std::format!("{}", Compact(0.001)), "0.001");
+        assert_eq!(std::format!("{}", Compact(0.0)), "0");
+        let t = std::format!("{}", TemperatureOutOfRange { celsius: -1e-300 });
+        assert!(t.starts_with("temperature -1e-300 °C"), "{t}");
         let huge = std::format!("{}", InvalidInput { quantity: Quantity::Flow, value: 1e300 });
         assert_eq!(huge, "flow 1e300 is outside the valid range 0-1e7 L/h");
         let ph = std::format!("{}", InvalidInput { quantity: Quantity::Ph, value: 15.5 });

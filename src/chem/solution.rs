@@ -7,7 +7,7 @@ use super::substance::{self, Part, Substance, UnknownSubstance};
 use super::system::{AcidBaseSystem, MAX_STEPS, SystemError};
 use super::water;
 use crate::real::Real;
-use crate::units::{Celsius, MAX_CELSIUS, MIN_CELSIUS, TemperatureOutOfRange};
+use crate::units::{Celsius, Compact, MAX_CELSIUS, MIN_CELSIUS, TemperatureOutOfRange};
 
 /// Largest total (mol/L) or strong-ion amount (eq/L) a solution accepts. Above it the
 /// dilute-solution chemistry here means nothing (and the solver's pH bracket may not hold).
@@ -54,9 +54,9 @@ impl core::fmt::Display for CompositionError {
     fn fmt(&self, f: &mut core::fmt::Formatter<'_>) -> core::fmt::Result {
         match self {
             Self::NonFinite => f.write_str("amount is not a finite number"),
-            Self::Negative { mol_per_l } => write!(f, "amount {mol_per_l} mol/L is negative"),
+            Self::Negative { mol_per_l } => write!(f, "amount {} mol/L is negative", Compact(*mol_per_l)),
             Self::TooConcentrated { mol_per_l } => {
-                write!(f, "total {mol_per_l} mol/L exceeds the {MAX_TOTAL_MOL_PER_L} mol/L limit")
+                write!(f, "total {} mol/L exceeds the {MAX_TOTAL_MOL_PER_L} mol/L limit", Compact(*mol_per_l))
             }
             Self::CapacityExceeded { capacity } => {
                 write!(f, "solution capacity of {capacity} acid-base systems exceeded")
@@ -66,7 +66,9 @@ impl core::fmt::Display for CompositionError {
             Self::Temperature(e) => core::fmt::Display::fmt(e, f),
             Self::InvalidFlow { first_l_per_h, second_l_per_h } => write!(
                 f,
-                "mixing flows {first_l_per_h:e} and {second_l_per_h:e} L/h must be finite, non-negative and not both zero"
+                "mixing flows {} and {} L/h must be finite, non-negative and not both zero",
+                Compact(*first_l_per_h),
+                Compact(*second_l_per_h)
             ),
         }
     }

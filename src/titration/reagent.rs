@@ -2,6 +2,7 @@
 
 use crate::chem::substance::{self, Substance, UnknownSubstance};
 use crate::real::Real;
+use crate::units::Compact;
 
 /// A reagent as bought: substance, mass percent (w/w) and density.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -82,8 +83,8 @@ impl core::fmt::Display for ReagentError {
     fn fmt(&self, f: &mut core::fmt::Formatter<'_>) -> core::fmt::Result {
         match self {
             Self::Unknown(e) => core::fmt::Display::fmt(e, f),
-            Self::MassPercent(p) => write!(f, "mass percent {p} is outside (0, 100]"),
-            Self::Density(d) => write!(f, "density {d} kg/L is outside (0.5, 3]"),
+            Self::MassPercent(p) => write!(f, "mass percent {} is outside (0, 100]", Compact(*p)),
+            Self::Density(d) => write!(f, "density {} kg/L is outside (0.5, 3]", Compact(*d)),
         }
     }
 }

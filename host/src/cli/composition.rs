@@ -5,7 +5,6 @@ use phdose::chem::{Solution, Substance, substance};
 
 use super::CliError;
 use super::conditions::Conditions;
-use super::error;
 
 /// Systems one host solution can hold; the catalogue has fewer, so any mix of built-in
 /// substances (plus a reagent's) fits.
@@ -76,8 +75,7 @@ pub fn solution<const N: usize>(
 ) -> Result<Solution<f64, N>, CliError> {
     let mut s = Solution::new(conditions.temperature, conditions.activity);
     for d in dissolved {
-        s.add_substance(d.substance, d.mol_per_l)
-            .map_err(|e| in_part(what, format!("{}: {}", d.given_as, error::composition(e))))?;
+        s.add_substance(d.substance, d.mol_per_l).map_err(|e| in_part(what, format!("{}: {}", d.given_as, e)))?;
     }
     Ok(s)
 }

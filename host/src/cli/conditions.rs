@@ -6,7 +6,6 @@ use phdose::chem::Activity;
 use phdose::units::Celsius;
 
 use super::CliError;
-use super::error;
 use super::value::finite_number;
 
 /// Temperature used when none is given, °C.
@@ -59,8 +58,8 @@ pub struct Conditions {
 
 impl Conditions {
     fn checked(temperature_c: Option<f64>, activity: Option<ActivityModel>) -> Result<Self, CliError> {
-        let temperature = Celsius::new(temperature_c.unwrap_or(DEFAULT_TEMPERATURE_C))
-            .map_err(|e| CliError::new(error::temperature(e)))?;
+        let temperature =
+            Celsius::new(temperature_c.unwrap_or(DEFAULT_TEMPERATURE_C)).map_err(|e| CliError::new(e.to_string()))?;
         Ok(Self { temperature, activity: activity.unwrap_or(ActivityModel::Davies).into() })
     }
 

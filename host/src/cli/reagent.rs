@@ -12,7 +12,6 @@ use serde::{Deserialize, Serialize};
 use super::CliError;
 use super::composition::{self, Dissolved};
 use super::conditions::Conditions;
-use super::error;
 use super::format::{num, sig};
 use super::json::{Entries, Num};
 
@@ -108,7 +107,7 @@ impl Reagent {
             }
         };
         let mol_per_l: f64 = reagent::mol_per_l(s, mass_percent, density_kg_per_l)
-            .map_err(|e| CliError::new(format!("{what}: {}", error::reagent(e))))?;
+            .map_err(|e| CliError::new(format!("{what}: {}", e)))?;
         Ok(Self {
             dissolved: vec![Dissolved { given_as: name.to_owned(), substance: s, mol_per_l }],
             grade: Some(Grade { mass_percent, density_kg_per_l, density_source }),

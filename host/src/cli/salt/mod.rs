@@ -10,7 +10,7 @@ use std::io::Read;
 use phdose::chem::salt;
 
 use super::conditions::ConditionArgs;
-use super::{CliError, Mode, error, json as json_io, value};
+use super::{CliError, Mode, json as json_io, value};
 use input::SaltInput;
 
 const AFTER_HELP: &str = "\
@@ -60,7 +60,7 @@ pub fn run(args: Args, stdin: &mut dyn Read) -> Result<String, CliError> {
     };
     let c = request.conditions;
     let report = salt::analyse(&request.salt, request.mol_per_l, c.temperature, c.activity)
-        .map_err(|e| CliError::new(format!("'{}': {}", request.salt, error::salt(e))))?;
+        .map_err(|e| CliError::new(format!("'{}': {}", request.salt, e)))?;
     match mode {
         Mode::Json => json::render(&request, &report),
         Mode::Table => Ok(table::render(&request, &report)),
