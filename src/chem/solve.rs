@@ -141,7 +141,7 @@ pub struct Equilibrium<R: Real> {
     pub davies_factor: R,
     /// How finely the working precision can place this root, pH: ε·S/β, where ε is the real
     /// type's relative precision ([`Real::RELATIVE_PRECISION`]: 2.2e-16 for `f64`, 1.2e-7 for
-    /// `f32`, 2.4e-3 for `f32` with `fast-math`), S the sum of the magnitudes
+    /// `f32`), S the sum of the magnitudes
     /// of every charge term in the balance (H⁺, OH⁻, 2× the strong ions' ionic strength, each
     /// system's total times its largest charge), eq/L, and β the buffer capacity. Rounding of
     /// the charge sum alone moves the root by about this much, whatever the tolerance; see
