@@ -26,6 +26,9 @@
 //! - [`units`]: checked unit newtypes.
 //! - [`chem`]: water, acid–base systems, catalogue, substances, solution, solver, salt hydrolysis.
 //! - [`titration`]: streams, reagents, dose for a setpoint, process gain, boot checks.
+//! - [`probe`]: the pH probe: Nernst slope, buffer table, calibration and acceptance, temperature
+//!   compensation, signal validation, the vote between two or three probes (imports only `real`
+//!   and `units`; `control` may import it, never the reverse).
 //! - [`control`]: the per-tick control law: feed-forward, flow-mapped PI, adaptation, residual.
 //!
 //! MSRV: Rust 1.95.
@@ -41,6 +44,7 @@ extern crate std;
 pub mod chem;
 pub mod control;
 mod invariant;
+pub mod probe;
 pub mod real;
 pub mod titration;
 pub mod units;
