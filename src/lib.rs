@@ -42,6 +42,7 @@
 extern crate std;
 
 pub mod chem;
+pub mod config;
 pub mod control;
 mod invariant;
 pub mod probe;

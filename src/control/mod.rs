@@ -4,9 +4,11 @@
 //! flow-mapped PI trim ([`feedback`]), the tank model with adaptation and model residual
 //! ([`adapt`]), and one tick of all of them with the split range between caustic and acid
 //! ([`regulator`]); the pump outputs in the pumps' own units ([`pump`]), the dose bookkeeping
-//! for the overdose guard ([`ledger`]) and the supervisor with its interlocks ([`supervisor`]).
+//! for the overdose guard ([`ledger`]) and the supervisor with its interlocks ([`supervisor`]);
+//! [`controller`] runs all of them, with the probes, in one `step` per tick.
 
 pub mod adapt;
+pub mod controller;
 pub mod feedback;
 pub mod feedforward;
 pub mod ledger;

@@ -101,6 +101,18 @@ pub struct Vote<R: Real> {
 }
 
 impl<R: Real> Vote<R> {
+    /// The vote with no healthy probe and no fault recorded (no pH).
+    pub fn none() -> Self {
+        Self {
+            ph: None,
+            selection: Selection::None,
+            used: [false; MAX_PROBES],
+            spread_ph: R::ZERO,
+            disagreement: None,
+            faults: [None; MAX_PROBES],
+        }
+    }
+
     /// How many probes took part (0–3).
     pub fn healthy_count(&self) -> usize {
         self.used.iter().filter(|&&u| u).count()

@@ -106,6 +106,11 @@ pub fn mol_per_l<R: Real>(substance: &Substance, mass_percent: R, density_kg_per
         / R::from_f64(substance.molar_mass_g_per_mol))
 }
 
+/// The built-in grade of `substance` at `mass_percent` % w/w (exact match), for its density.
+pub fn common_grade(substance: &Substance, mass_percent: f64) -> Option<&'static ReagentGrade> {
+    COMMON_GRADES.iter().find(|g| g.formula == substance.formula && g.mass_percent == mass_percent)
+}
+
 /// [`mol_per_l`] for a formula or name.
 pub fn mol_per_l_of<R: Real>(formula: &str, mass_percent: R, density_kg_per_l: R) -> Result<R, ReagentError> {
     let s = substance::find(formula).map_err(ReagentError::Unknown)?;

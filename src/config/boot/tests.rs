@@ -1,0 +1,150 @@
+//! Boot-check tests: the example skid passes; a table of bad configurations, each refused with
+//! its expected code; every single-bit flip of the example's blob is refused.
+
+use super::*;
+use crate::config::{PumpSettings, example};
+
+fn report(skid: &Skid) -> BootReport {
+    check::<f32>(skid)
+}
+
+#[test]
+fn the_example_skid_is_allowed_in_f32_and_f64() {
+    for r in [check::<f32>(&example::plating_rinse()), check::<f64>(&example::plating_rinse())] {
+        assert!(r.allowed(), "{r:?}");
+        assert!(r.errors.is_empty());
+    }
+}
+
+type Edit = fn(&mut Skid);
+
+/// (what is wrong, the edit, the expected code).
+const BAD: &[(&str, Edit, Code)] = &[
+    ("band of zero", |s| s.control.band_ph = 0.0, Code::SettingOutOfRange),
+    ("NaN setpoint", |s| s.control.setpoint_ph = f32::NAN, Code::SettingOutOfRange),
+    ("tick of an hour", |s| s.control.tick_s = 3600.0, Code::SettingOutOfRange),
+    ("negative integral time", |s| s.control.integral_time_s = -5.0, Code::SettingOutOfRange),
+    ("design flow above max", |s| s.influent.design_flow_l_per_h = 5000.0, Code::FlowsInconsistent),
+    (
+        "limits swapped",
+        |s| {
+            s.control.low_limit_ph = 10.0;
+            s.control.high_limit_ph = 1.0;
+        },
+        Code::LimitsInconsistent,
+    ),
+    ("setpoint at the high limit", |s| s.control.high_limit_ph = 7.1, Code::SetpointOutsideLimits),
+    ("watchdog shorter than the tick", |s| s.interlocks.max_tick_age_s = 2.0, Code::Watchdog),
+    (
+        "unknown influent substance",
+        |s| {
+            let _ = s.influent.dissolved.insert(crate::config::Formula::try_from("Xy2Q").unwrap(), 0.001);
+        },
+        Code::UnknownSubstance,
+    ),
+    (
+        "influent amount beyond 20 mol/L",
+        |s| {
+            let _ = s.influent.dissolved.insert(crate::config::Formula::try_from("NaCl").unwrap(), 50.0);
+        },
+        Code::InfluentComposition,
+    ),
+    ("no reagent", |s| s.caustic = None, Code::NoReagent),
+    (
+        "acid where caustic is needed",
+        |s| {
+            let mut acid = s.caustic.take().unwrap();
+            acid.substance = crate::config::Formula::try_from("HCl").unwrap();
+            acid.mass_percent = 32.0;
+            s.acid = Some(acid);
+        },
+        Code::Unreachable,
+    ),
+    (
+        "setpoint beyond a dilute reagent",
+        |s| {
+            let c = s.caustic.as_mut().unwrap();
+            c.mass_percent = 0.0001;
+            c.density_kg_per_l = Some(1.0);
+            s.control.setpoint_ph = 10.5;
+            s.control.high_limit_ph = 12.0;
+        },
+        Code::Unreachable,
+    ),
+    (
+        "pump too small",
+        |s| {
+            s.caustic.as_mut().unwrap().pump =
+                PumpSettings::Duty { max_l_per_h: 0.2, min_duty: 0.0, resolution_steps: 1000 };
+        },
+        Code::BeyondPump,
+    ),
+    (
+        "pump too coarse",
+        |s| {
+            s.caustic.as_mut().unwrap().pump =
+                PumpSettings::Duty { max_l_per_h: 10.0, min_duty: 0.0, resolution_steps: 4 };
+        },
+        Code::TooSteep,
+    ),
+    ("no probe", |s| s.probes.probes.clear(), Code::NoProbe),
+    ("probe slope half of Nernst", |s| s.probes.probes[0].slope_mv_per_ph = 29.0, Code::CalibrationRejected),
+    ("probe offset 90 mV", |s| s.probes.probes[1].offset_mv = 90.0, Code::CalibrationRejected),
+    ("hourly limit above the daily", |s| s.caustic.as_mut().unwrap().max_per_day_l = 1.0, Code::OverdoseGuard),
+    ("hourly limit below the design dose", |s| s.caustic.as_mut().unwrap().max_per_hour_l = 0.1, Code::OverdoseGuard),
+    ("unknown density", |s| s.caustic.as_mut().unwrap().mass_percent = 27.0, Code::ReagentStrength),
+    (
+        "pump of zero stroke",
+        |s| {
+            s.caustic.as_mut().unwrap().pump =
+                PumpSettings::Pulse { stroke_volume_ml: 0.0, max_strokes_per_min: 100.0 };
+        },
+        Code::PumpSettings,
+    ),
+];
+
+#[test]
+fn bad_configurations_are_refused_with_their_code() {
+    assert!(BAD.len() >= 15);
+    for (what, edit, code) in BAD {
+        let mut skid = example::plating_rinse();
+        edit(&mut skid);
+        for r in [check::<f32>(&skid), check::<f64>(&skid)] {
+            assert!(!r.allowed(), "{what}: allowed: {r:?}");
+            assert!(r.errors.iter().any(|f| f.code == *code), "{what}: expected {code:?}, got {:?}", r.errors);
+        }
+    }
+}
+
+#[test]
+fn warnings_do_not_refuse() {
+    let mut skid = example::plating_rinse();
+    skid.probes.probes.truncate(1);
+    skid.probes.probes[0].age_days = 90.0;
+    let r = report(&skid);
+    assert!(r.allowed(), "{r:?}");
+    assert!(r.has(Code::SingleProbe) && r.has(Code::CalibrationOld));
+}
+
+#[test]
+fn every_single_bit_flip_of_the_blob_is_refused_by_the_boot_check() {
+    let mut buf = [0_u8; crate::config::blob::MAX_BLOB_LEN];
+    let n = blob::encode(&example::plating_rinse(), &mut buf).unwrap();
+    let (skid, r) = check_blob::<f32>(&buf[..n]);
+    assert!(skid.is_some() && r.allowed(), "{r:?}");
+    for byte in 0..n {
+        for bit in 0..8 {
+            buf[byte] ^= 1 << bit;
+            let (_, r) = check_blob::<f32>(&buf[..n]);
+            assert!(!r.allowed() && r.has(Code::BlobUnreadable), "bit {bit} of byte {byte}");
+            buf[byte] ^= 1 << bit;
+        }
+    }
+}
+
+#[test]
+fn codes_are_stable_and_messages_carry_the_numbers() {
+    let f = Finding::named(Code::BeyondPump, "caustic", 12.5, 10.0);
+    assert_eq!(std::format!("{f}"), "210: dose exceeds the pump's maximum (caustic): 12.5 (limit 10)");
+    assert!(Code::BeyondPump.is_error() && !Code::SingleProbe.is_error());
+}
