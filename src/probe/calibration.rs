@@ -8,8 +8,9 @@
 //! `s(T) = s_cal·T/T_cal` (kelvin). The line turns about the **isopotential point**, assumed to
 //! be (pH 7, `E₇`) at every temperature: the offset does not change with temperature. A real
 //! electrode's isopotential point lies near, not exactly at, pH 7; the compensation error is
-//! then `(pH_iso − 7)·(1 − T/T_cal)` pH, i.e. 0.017 pH for an isopotential point at pH 6.5 and
-//! 10 K away from `T_cal` (calc). Calibrating near the process temperature keeps it small.
+//! then `(pH_iso − 7)·(T_cal − T)/T` pH, whatever the pH read (calc from the two lines): 0.016 pH
+//! for an isopotential point at pH 6.5 read 10 K above a 25 °C calibration. Calibrating near the
+//! process temperature keeps it small.
 //!
 //! **Calibration.** Each point is a buffer of [`super::buffers`], the temperature it was
 //! measured at (0–50 °C, the table's range) and the electrode's mV. The calibration temperature
