@@ -8,8 +8,9 @@
 //! `s(T) = s_cal·T/T_cal` (kelvin). The line turns about the **isopotential point**, assumed to
 //! be (pH 7, `E₇`) at every temperature: the offset does not change with temperature. A real
 //! electrode's isopotential point lies near, not exactly at, pH 7; the compensation error is
-//! then `(pH_iso − 7)·(1 − T/T_cal)` pH, i.e. 0.017 pH for an isopotential point at pH 6.5 and
-//! 10 K away from `T_cal` (calc). Calibrating near the process temperature keeps it small.
+//! then `(pH_iso − 7)·(T_cal − T)/T` pH, whatever the pH read (calc from the two lines): 0.016 pH
+//! for an isopotential point at pH 6.5 read 10 K above a 25 °C calibration. Calibrating near the
+//! process temperature keeps it small.
 //!
 //! **Calibration.** Each point is a buffer of [`super::buffers`], the temperature it was
 //! measured at (0–50 °C, the table's range) and the electrode's mV. The calibration temperature
@@ -347,6 +348,11 @@ mod tests {
         e7 - fraction * k(celsius) * (ph - 7.0)
     }
 
+    fn assert_line<R: Real>(cal: &Calibration<R>, slope_mv_per_ph: f64, offset_mv: f64, tol_mv: f64) {
+        assert!((cal.slope_mv_per_ph().to_f64() - slope_mv_per_ph).abs() < tol_mv, "{cal:?} vs {slope_mv_per_ph}");
+        assert!((cal.offset_mv().to_f64() - offset_mv).abs() < tol_mv, "{cal:?} vs {offset_mv}");
+    }
+
     fn point<R: Real>(buffer: Buffer, celsius: f64, mv: f64) -> CalibrationPoint<R> {
         CalibrationPoint { buffer, temperature: c(celsius), mv: R::from_f64(mv) }
     }
@@ -355,8 +361,7 @@ mod tests {
         // Phosphate at 25 °C: pH 6.865 (Buck et al. 2002, IUPAC table).
         let mv = electrode(1.0, -12.0, 6.865, 25.0);
         let cal = calibrate(&[point::<R>(Buffer::Phosphate, 25.0, mv)]).unwrap();
-        assert!((cal.slope_mv_per_ph().to_f64() - k(25.0)).abs() < tol * 10.0, "{cal:?}");
-        assert!((cal.offset_mv().to_f64() + 12.0).abs() < tol * 10.0, "{cal:?}");
+        assert_line(&cal, k(25.0), -12.0, tol * 10.0);
         assert!((cal.slope_percent().to_f64() - 100.0).abs() < tol * 10.0);
     }
 
@@ -375,8 +380,7 @@ mod tests {
         ];
         let cal = calibrate(&pts).unwrap();
         assert_eq!(cal.temperature(), c(20.0));
-        assert!((cal.slope_mv_per_ph().to_f64() - f * k(20.0)).abs() < tol_mv, "{cal:?}");
-        assert!((cal.offset_mv().to_f64() - e7).abs() < tol_mv, "{cal:?}");
+        assert_line(&cal, f * k(20.0), e7, tol_mv);
         assert!((cal.slope_percent().to_f64() - 97.0).abs() < tol_mv * 2.0);
     }
 
@@ -406,8 +410,7 @@ mod tests {
         let b = (n * sxy - sx * sy) / (n * sxx - sx * sx);
         let a = (sy - b * sx) / n;
         let (slope, e7) = (-b, a + b * 7.0);
-        assert!((cal.slope_mv_per_ph().to_f64() - slope).abs() < tol, "{cal:?} vs {slope}");
-        assert!((cal.offset_mv().to_f64() - e7).abs() < tol, "{cal:?} vs {e7}");
+        assert_line(&cal, slope, e7, tol);
         // And not the exact line: the reading errors moved it.
         assert!((slope - 0.98 * k(25.0)).abs() > 0.05);
     }

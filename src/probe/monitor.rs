@@ -281,6 +281,17 @@ impl<R: Real> Monitor<R> {
 mod tests {
     use super::*;
 
+    /// `#[test] fn $name` running `$check` in `f64` and in `f32`.
+    macro_rules! both {
+        ($name:ident, $check:ident) => {
+            #[test]
+            fn $name() {
+                $check::<f64>();
+                $check::<f32>();
+            }
+        };
+    }
+
     /// The Nernst slope at 25 °C, mV/pH (calc, k_B/e·ln10·298.15 K).
     const SLOPE: f64 = 59.159;
 
@@ -305,11 +316,7 @@ mod tests {
         assert_eq!(tick(&mut m, 1.0, 600.0).map(|f| f.code()), Some(2), "600 mV itself is in range");
     }
 
-    #[test]
-    fn out_of_range_and_nan_samples_are_faults() {
-        out_of_range::<f64>();
-        out_of_range::<f32>();
-    }
+    both!(out_of_range_and_nan_samples_are_faults, out_of_range);
 
     fn rate<R: Real>() {
         let mut m = monitor::<R>();
@@ -324,11 +331,7 @@ mod tests {
         assert_eq!(tick(&mut m, 2.0, -50.0), None);
     }
 
-    #[test]
-    fn rate_beyond_the_tank_is_a_fault() {
-        rate::<f64>();
-        rate::<f32>();
-    }
+    both!(rate_beyond_the_tank_is_a_fault, rate);
 
     fn noise<R: Real>() {
         // A signal alternating ±5 mV around 20 mV every second: second differences of ±20 mV,
@@ -354,11 +357,7 @@ mod tests {
         assert!((m.noise_mv().to_f64() - expected / 2.0).abs() < 1e-3);
     }
 
-    #[test]
-    fn excessive_noise_is_a_fault() {
-        noise::<f64>();
-        noise::<f32>();
-    }
+    both!(excessive_noise_is_a_fault, noise);
 
     fn ramp<R: Real>() {
         // A steady ramp of 0.25 mV/s (0.0042 pH/s) for an hour: no noise, never frozen.
@@ -369,11 +368,7 @@ mod tests {
         assert!(m.noise_mv().to_f64() < 1e-3, "{}", m.noise_mv());
     }
 
-    #[test]
-    fn a_steady_ramp_is_neither_noise_nor_frozen() {
-        ramp::<f64>();
-        ramp::<f32>();
-    }
+    both!(a_steady_ramp_is_neither_noise_nor_frozen, ramp);
 
     fn frozen<R: Real>() {
         // Within ±0.1 mV of 12.3 mV, a tick every 10 s; the window is 900 s.
@@ -394,11 +389,7 @@ mod tests {
         assert_eq!(m.still_s().to_f64(), 0.0);
     }
 
-    #[test]
-    fn a_frozen_signal_is_a_fault_after_the_window() {
-        frozen::<f64>();
-        frozen::<f32>();
-    }
+    both!(a_frozen_signal_is_a_fault_after_the_window, frozen);
 
     fn bad_ticks<R: Real>() {
         let mut m = monitor::<R>();
@@ -413,11 +404,7 @@ mod tests {
         assert_eq!(m, before, "an invalid tick changes nothing");
     }
 
-    #[test]
-    fn invalid_ticks_are_ignored_and_reported() {
-        bad_ticks::<f64>();
-        bad_ticks::<f32>();
-    }
+    both!(invalid_ticks_are_ignored_and_reported, bad_ticks);
 
     #[test]
     fn settings_are_checked_and_messages_carry_the_numbers() {

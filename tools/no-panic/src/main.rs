@@ -28,6 +28,11 @@ use phdose::control::adapt::AdaptSettings;
 use phdose::control::feedback::PiTuning;
 use phdose::control::feedforward::{DeadBands, Reagent};
 use phdose::control::regulator::{Regulator, RegulatorInputs, RegulatorMode, RegulatorSettings};
+use phdose::probe::buffers::Buffer;
+use phdose::probe::calibration::{Acceptance, Calibration, CalibrationPoint, calibrate};
+use phdose::probe::monitor::MonitorSettings;
+use phdose::probe::vote::{VoteSettings, vote};
+use phdose::probe::{Probe, nernst};
 use phdose::titration::alkalinity::{self, AcidPoint};
 use phdose::titration::fit::{self, Effective, FitSpec};
 use phdose::titration::{self, CurvePoint, DoseRequest, EquivalencePoint, Titration, stages};
@@ -158,6 +163,34 @@ fn control_law<R: Real>() -> Option<()> {
     Some(())
 }
 
+fn probes<R: Real>() -> Option<()> {
+    let t = Celsius::new(r::<R>(23.0)).ok()?;
+    sink(nernst::slope_mv_per_ph(t));
+    sink(Buffer::Carbonate.ph(t).ok()?);
+    // A point count, buffers and mV the optimiser cannot see: every branch of `calibrate` stays.
+    let points = [
+        CalibrationPoint { buffer: black_box(Buffer::Phthalate), temperature: t, mv: r::<R>(171.0) },
+        CalibrationPoint { buffer: black_box(Buffer::Phosphate), temperature: t, mv: r::<R>(8.0) },
+        CalibrationPoint { buffer: black_box(Buffer::Borax), temperature: t, mv: r::<R>(-128.0) },
+    ];
+    let n = black_box(3_usize).min(points.len());
+    let cal = calibrate(points.get(..n)?).ok()?;
+    let limits = Acceptance::new(r::<R>(95.0), r::<R>(105.0), r::<R>(30.0)).ok()?;
+    black_box(limits.judge(&cal).accepted);
+    let stored = Calibration::new(r::<R>(58.5), r::<R>(-3.0), t).ok()?;
+    sink(stored.mv(r::<R>(7.5), t));
+    let settings =
+        MonitorSettings::new(r::<R>(600.0), r::<R>(0.2), r::<R>(5.0), r::<R>(60.0), r::<R>(0.2), r::<R>(900.0)).ok()?;
+    let mut a = Probe::new(cal, settings);
+    let mut b = Probe::new(stored, MonitorSettings::default());
+    let readings = [a.tick(r::<R>(1.0), r::<R>(-20.0), t), b.tick(r::<R>(1.0), r::<R>(-25.0), t)];
+    let m = black_box(2_usize).min(readings.len());
+    let v = vote(readings.get(..m)?, &VoteSettings::new(r::<R>(0.3)).ok()?).ok()?;
+    sink(v.ph?);
+    sink(v.spread_ph);
+    Some(())
+}
+
 #[entry]
 fn main() -> ! {
     // f32 (what an MCU with a single-precision FPU runs) and f64, every layer.
@@ -168,7 +201,9 @@ fn main() -> ! {
         + u8::from(dosing::<f64>().is_some())
         + u8::from(titrations::<f64>().is_some())
         + u8::from(control_law::<f32>().is_some())
-        + u8::from(control_law::<f64>().is_some());
+        + u8::from(control_law::<f64>().is_some())
+        + u8::from(probes::<f32>().is_some())
+        + u8::from(probes::<f64>().is_some());
     black_box(ok);
     loop {
         cortex_m::asm::nop();
