@@ -88,7 +88,7 @@ pub fn plating_rinse() -> Skid {
             max_slope_percent: 105.0,
             max_abs_offset_mv: 30.0,
             max_abs_mv: 600.0,
-            max_rate_ph_per_s: 0.05,
+            max_rate_ph_per_s: 0.2,
             max_noise_mv: 5.0,
             noise_time_s: 60.0,
             frozen_band_mv: 0.05,

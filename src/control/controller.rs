@@ -274,8 +274,14 @@ impl<R: Real, const N: usize> Controller<R, N> {
             }
         };
 
-        // 2. Probes and vote. At most MAX_PROBES readings.
-        let probe_dt = if dt_ok { dt } else { R::ZERO };
+        // 2. Probes and vote. At most MAX_PROBES readings. A stale tick still feeds the probes
+        // the real elapsed time (their monitor accepts up to an hour), so a late tick is
+        // reported as stale, not as a probe fault.
+        let probe_dt = if dt.is_finite() && dt > R::ZERO {
+            dt.min(R::from_f64(crate::probe::monitor::MAX_TICK_S))
+        } else {
+            R::ZERO
+        };
         let mut readings: Vec<Reading<R>, MAX_PROBES> = Vec::new();
         for (probe, mv) in self.probes.iter_mut().zip(inputs.probe_mv) {
             // Capacity MAX_PROBES and at most MAX_PROBES probes: the push cannot fail.

@@ -24,6 +24,12 @@
 //!   holds any more (a reset while the cause persists is ignored and the trip stays).
 //!
 //! Every trip reason has a stable numeric code ([`TripReason::code`]); codes are never reused.
+//! When several conditions hold at once, the root cause is latched ([`TripReason::PRIORITY`]).
+//!
+//! **Model mismatch** can only be observed while dosing (it compares the measured pH with the
+//! model's for the dose delivered): once tripped, nothing is delivered and measurement and
+//! model agree again, so the reset is the operator's acknowledgement. Dosing restarts with the
+//! mismatch timer at zero and trips again after the trip time if the cause persists.
 
 /// Why dosing was stopped. The numeric codes are stable (see [`TripReason::code`]).
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -57,6 +63,23 @@ pub enum TripReason {
 }
 
 impl TripReason {
+    /// The order in which a reason is latched when several hold at once: root causes first
+    /// (stale inputs and broken probes make the other conditions meaningless), then the
+    /// process conditions.
+    pub const PRIORITY: [Self; 11] = [
+        Self::ConfigInvalid,
+        Self::StaleInputs,
+        Self::ProbeFault,
+        Self::ProbeDisagreement,
+        Self::NoFlow,
+        Self::ReagentLow,
+        Self::PhHigh,
+        Self::PhLow,
+        Self::OverdoseHour,
+        Self::OverdoseDay,
+        Self::ModelMismatch,
+    ];
+
     /// Every reason, in code order.
     pub const ALL: [Self; 11] = [
         Self::NoFlow,
@@ -188,8 +211,8 @@ pub enum ModeRequest {
 #[derive(Clone, Copy, Debug, Default, PartialEq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct Conditions {
-    /// The conditions that hold now, at most one per reason (the controller fills them in
-    /// [`TripReason::ALL`] order; the first one that holds is the one latched).
+    /// The conditions that hold now, one slot per reason in [`TripReason::ALL`] order; when
+    /// several hold, the first in [`TripReason::PRIORITY`] order is latched.
     pub holding: [Option<Trip>; TripReason::ALL.len()],
 }
 
@@ -201,9 +224,13 @@ impl Conditions {
         }
     }
 
-    /// The first condition that holds, skipping `NoFlow` when `dosing` is false.
+    /// The condition to latch: the first that holds in [`TripReason::PRIORITY`] order,
+    /// skipping `NoFlow` when `dosing` is false. At most 11 × 11 comparisons.
     pub fn first(&self, dosing: bool) -> Option<Trip> {
-        self.holding.iter().flatten().copied().find(|t| dosing || t.reason != TripReason::NoFlow)
+        TripReason::PRIORITY
+            .iter()
+            .filter(|r| dosing || **r != TripReason::NoFlow)
+            .find_map(|r| self.holding.iter().flatten().find(|t| t.reason == *r).copied())
     }
 
     /// `true` when `reason` holds.
@@ -360,7 +387,7 @@ mod tests {
     }
 
     #[test]
-    fn the_first_reason_in_code_order_is_latched_with_its_numbers() {
+    fn the_first_reason_in_priority_order_is_latched_with_its_numbers() {
         let mut c = Conditions::default();
         c.set(TripReason::ReagentLow, 1.0, 0.0);
         c.set(TripReason::PhHigh, 11.2, 10.5);
