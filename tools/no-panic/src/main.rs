@@ -24,10 +24,13 @@ fn on_panic(_: &core::panic::PanicInfo<'_>) -> ! {
 use phdose::Real;
 use phdose::chem::salt;
 use phdose::chem::{Activity, Solution};
+use phdose::config::{boot, build, example};
 use phdose::control::adapt::AdaptSettings;
+use phdose::control::controller::{Controller, TickInputs};
 use phdose::control::feedback::PiTuning;
-use phdose::control::feedforward::{DeadBands, Reagent};
+use phdose::control::feedforward::{DeadBands, Reagent, ReagentSide};
 use phdose::control::regulator::{Regulator, RegulatorInputs, RegulatorMode, RegulatorSettings};
+use phdose::control::supervisor::ModeRequest;
 use phdose::probe::buffers::Buffer;
 use phdose::probe::calibration::{Acceptance, Calibration, CalibrationPoint, calibrate};
 use phdose::probe::monitor::MonitorSettings;
@@ -191,6 +194,36 @@ fn probes<R: Real>() -> Option<()> {
     Some(())
 }
 
+/// Bytes standing in for a stored configuration: `black_box` hides them from the optimiser,
+/// so the decoder and the boot checks are proven for any content.
+static BLOB: [u8; 512] = [0; 512];
+
+/// The board's path at power-on and every tick: decode the stored blob, run the boot checks,
+/// build the controller, step it.
+fn controller<R: Real>() -> Option<()> {
+    let bytes: &[u8] = black_box(BLOB.get(..black_box(300)).unwrap_or(&[]));
+    let (skid, report) = boot::check_blob::<R>(bytes);
+    black_box(report.allowed());
+    let skid = skid.unwrap_or_else(example::plating_rinse);
+    let report = boot::check::<R>(black_box(&skid));
+    let config = build::controller_config::<R>(&skid).ok()?;
+    let mut c = Controller::new(config, report.allowed()).ok()?;
+    let out = c.step(&black_box(TickInputs {
+        dt_s: r::<R>(5.0),
+        probe_mv: [r::<R>(10.0), r::<R>(12.0), r::<R>(f64::NAN)],
+        temperature_c: r::<R>(18.0),
+        influent_flow_l_per_h: Some(r::<R>(1200.0)),
+        flow_switch: true,
+        reagent_low: [false, false],
+        reset: false,
+        mode: ModeRequest::Auto,
+        manual: (ReagentSide::Caustic, r::<R>(0.0)),
+    }));
+    sink(out.delivered_l_per_h[0]);
+    black_box(out.state);
+    Some(())
+}
+
 #[entry]
 fn main() -> ! {
     // f32 (what an MCU with a single-precision FPU runs) and f64, every layer.
@@ -203,7 +236,8 @@ fn main() -> ! {
         + u8::from(control_law::<f32>().is_some())
         + u8::from(control_law::<f64>().is_some())
         + u8::from(probes::<f32>().is_some())
-        + u8::from(probes::<f64>().is_some());
+        + u8::from(probes::<f64>().is_some())
+        + u8::from(controller::<f32>().is_some());
     black_box(ok);
     loop {
         cortex_m::asm::nop();
