@@ -37,10 +37,10 @@ fn running<R: Real>() -> (Controller<R, MODEL_SYSTEMS>, TickInputs<R>) {
         mode: ModeRequest::Auto,
         manual: (ReagentSide::Caustic, R::ZERO),
     };
-    for k in 0..200 {
+    for k in 0..200_u32 {
         let mut i = inputs;
         // ±0.2 mV of electrode noise keeps the frozen-signal check quiet.
-        let d = R::from_f64(if k % 2 == 0 { 0.2 } else { -0.2 });
+        let d = R::from_f64(if k.is_multiple_of(2) { 0.2 } else { -0.2 });
         i.probe_mv = [i.probe_mv[0] + d, i.probe_mv[1] + d, i.probe_mv[2]];
         c.step(&i);
     }
@@ -63,10 +63,9 @@ fn bench_real<R: Real>(crit: &mut Criterion, name: &str) {
         b.iter(|| {
             k = k.wrapping_add(1);
             let mut i = inputs;
-            let d = R::from_f64(if k % 2 == 0 { 0.2 } else { -0.2 });
+            let d = R::from_f64(if k.is_multiple_of(2) { 0.2 } else { -0.2 });
             i.probe_mv = [i.probe_mv[0] + d, i.probe_mv[1] + d, i.probe_mv[2]];
-            let out = c.step(black_box(&i));
-            out
+            c.step(black_box(&i))
         })
     });
     let (mut c, inputs) = running::<R>();
@@ -74,11 +73,10 @@ fn bench_real<R: Real>(crit: &mut Criterion, name: &str) {
         b.iter(|| {
             k = k.wrapping_add(1);
             let mut i = inputs;
-            let d = R::from_f64(if k % 2 == 0 { 0.2 } else { -0.2 });
+            let d = R::from_f64(if k.is_multiple_of(2) { 0.2 } else { -0.2 });
             i.probe_mv = [i.probe_mv[0] + d, i.probe_mv[1] + d, i.probe_mv[2]];
-            i.influent_flow_l_per_h = Some(R::from_f64(if k % 2 == 0 { 1200.0 } else { 1320.0 }));
-            let out = c.step(black_box(&i));
-            out
+            i.influent_flow_l_per_h = Some(R::from_f64(if k.is_multiple_of(2) { 1200.0 } else { 1320.0 }));
+            c.step(black_box(&i))
         })
     });
     g.finish();
