@@ -10,7 +10,7 @@ use phdose::control::adapt::AdaptSettings;
 use phdose::control::feedback::PiTuning;
 use phdose::control::feedforward::{DeadBands, ModelError, Reagent, ReagentSide};
 use phdose::control::regulator::{
-    Regulator, RegulatorError, RegulatorInputs, RegulatorMode, RegulatorOutput, RegulatorSettings,
+    Law, Regulator, RegulatorError, RegulatorInputs, RegulatorMode, RegulatorOutput, RegulatorSettings,
 };
 use phdose::titration::reagent::mol_per_l_of;
 use phdose::units::Celsius;
@@ -37,6 +37,7 @@ fn caustic(activity: Activity) -> Solution<f64, 2> {
 fn settings(setpoint_ph: f64, bound_fraction: f64) -> RegulatorSettings<f64> {
     let residence_s = VOLUME_L / 1200.0 * 3600.0;
     RegulatorSettings {
+        law: Law::Model,
         setpoint_ph,
         pi: PiTuning {
             integral_time_s: residence_s + PROBE_LAG_S,
@@ -334,4 +335,31 @@ fn regulator_state_size() {
     let n64 = core::mem::size_of::<Regulator<f64, 6>>();
     println!("size_of Regulator<f32, 6> = {n32} B, Regulator<f64, 6> = {n64} B");
     assert!(n32 < n64);
+}
+
+#[test]
+fn the_feedback_only_law_has_no_feed_forward_and_reaches_the_band_slower() {
+    let mut s = settings(7.5, 0.5);
+    s.law = Law::FeedbackOnly { gain_l_per_h_per_ph: 0.05 };
+    s.pi.closed_loop_time_constant_s = s.pi.integral_time_s; // proportional factor Ti/λ = 1
+    let configured = water(0.0015, 0.0022, Activity::Ideal);
+    let reagent = Reagent { solution: caustic(Activity::Ideal), max_l_per_h: 3.0 };
+    let mut reg = Regulator::new(s, configured, Some(reagent), None, 1200.0).unwrap();
+    let mut plant = Plant::new(water(0.0015, 0.0022, Activity::Davies));
+    let first = reg.step(&tick(plant.probe_ph, 1200.0, [0.0; 2], RegulatorMode::Auto));
+    assert_eq!(first.feed_forward_l_per_h, 0.0);
+    assert!((first.error_l_per_h - 0.05 * (7.5 - plant.probe_ph)).abs() < 1e-12, "{first:?}");
+    assert!(!first.adapted);
+    let fb = run(&mut reg, &mut plant, ticks(14400.0), |_| 1200.0);
+    let mut ff_reg = regulator(7.5, 0.5);
+    let mut ff_plant = Plant::new(water(0.0015, 0.0022, Activity::Davies));
+    let ff = run(&mut ff_reg, &mut ff_plant, ticks(14400.0), |_| 1200.0);
+    let iae = |r: &Run| r.ph.iter().map(|p| (p - 7.5).abs() * TICK_S).sum::<f64>();
+    println!(
+        "IAE over 4 h from a cold start: feed-forward + feedback {:.0} pH·s, feedback only {:.0} pH·s",
+        iae(&ff),
+        iae(&fb)
+    );
+    assert!(fb.out.iter().all(|o| o.feed_forward_l_per_h == 0.0 && !o.adapted));
+    assert!(iae(&fb) > iae(&ff), "the feedback-only loop should do worse");
 }

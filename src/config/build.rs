@@ -14,7 +14,7 @@ use crate::control::controller::{Controller, ControllerConfig, Interlocks, Reage
 use crate::control::feedback::PiTuning;
 use crate::control::feedforward::{DeadBands, Reagent};
 use crate::control::pump::PumpDrive;
-use crate::control::regulator::RegulatorSettings;
+use crate::control::regulator::{Law, RegulatorSettings};
 use crate::probe::Probe;
 use crate::probe::calibration::{Acceptance, Calibration};
 use crate::probe::monitor::MonitorSettings;
@@ -97,6 +97,7 @@ pub fn reagent<R: Real>(
 /// The control law's settings.
 pub fn regulator_settings<R: Real>(c: &ControlSettings) -> RegulatorSettings<R> {
     RegulatorSettings {
+        law: Law::Model,
         setpoint_ph: r(c.setpoint_ph),
         pi: PiTuning {
             integral_time_s: r(c.integral_time_s),

@@ -24,10 +24,28 @@ use crate::chem::{Equilibrium, Solution};
 use crate::real::Real;
 use crate::units::Celsius;
 
+/// Which law runs in automatic.
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub enum Law<R: Real> {
+    /// The chemistry's law: feed-forward from the dose model plus PI on the flow-mapped error,
+    /// with adaptation.
+    Model,
+    /// A conventional loop for comparison: no feed-forward, no adaptation, PI on the pH error
+    /// itself with a fixed gain (L/h of reagent per pH of error; the PI's proportional factor
+    /// Ti/λ multiplies it). The interlocks and the model residual run as for [`Law::Model`].
+    FeedbackOnly {
+        /// Gain on the pH error, L/h per pH (> 0).
+        gain_l_per_h_per_ph: R,
+    },
+}
+
 /// Settings of the control law.
 #[derive(Clone, Copy, Debug, PartialEq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct RegulatorSettings<R: Real> {
+    /// The law (the chemistry's, or feedback only for a comparison).
+    pub law: Law<R>,
     /// Setpoint, pH (0–14; the boot checks demand it inside the hard limits).
     pub setpoint_ph: R,
     /// PI tuning.
@@ -166,6 +184,9 @@ impl<R: Real> RegulatorSettings<R> {
         check("residual_bound_ph", self.adapt.residual_bound_ph, 0.05, 5.0)?;
         check("residual_time_s", self.adapt.residual_time_s, 0.0, 1e7)?;
         check("switch_dead_band_ph", self.switch_dead_band_ph, 0.0, 2.0)?;
+        if let Law::FeedbackOnly { gain_l_per_h_per_ph } = self.law {
+            check("gain_l_per_h_per_ph", gain_l_per_h_per_ph, 1e-9, 1e6)?;
+        }
         Ok(())
     }
 }
@@ -349,6 +370,18 @@ impl<R: Real, const N: usize> Regulator<R, N> {
             _ => (R::ZERO, R::ZERO),
         };
 
+        // The feedback-only comparison law: no feed-forward, the pH error times a fixed gain.
+        let (ff_flow, error_q) = match self.settings.law {
+            Law::Model => (ff_flow, error_q),
+            Law::FeedbackOnly { gain_l_per_h_per_ph } => {
+                let towards = match side {
+                    ReagentSide::Caustic => error_ph,
+                    ReagentSide::Acid => -error_ph,
+                };
+                (R::ZERO, gain_l_per_h_per_ph * towards)
+            }
+        };
+
         // The law, in the mode the supervisor grants.
         let mut demand = [R::ZERO; 2];
         let mut trim = R::ZERO;
@@ -406,7 +439,7 @@ impl<R: Real, const N: usize> Regulator<R, N> {
                 (None, None, None)
             }
         };
-        let ok = trusted && auto && !saturated && model_error.is_none();
+        let ok = trusted && auto && !saturated && model_error.is_none() && self.settings.law == Law::Model;
         let adapted = self.adaptation.update(&self.settings.adapt, dt, raw, bound, ok);
 
         RegulatorOutput {

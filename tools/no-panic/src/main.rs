@@ -29,7 +29,7 @@ use phdose::control::adapt::AdaptSettings;
 use phdose::control::controller::{Controller, TickInputs};
 use phdose::control::feedback::PiTuning;
 use phdose::control::feedforward::{DeadBands, Reagent, ReagentSide};
-use phdose::control::regulator::{Regulator, RegulatorInputs, RegulatorMode, RegulatorSettings};
+use phdose::control::regulator::{Law, Regulator, RegulatorInputs, RegulatorMode, RegulatorSettings};
 use phdose::control::supervisor::ModeRequest;
 use phdose::probe::buffers::Buffer;
 use phdose::probe::calibration::{Acceptance, Calibration, CalibrationPoint, calibrate};
@@ -131,6 +131,7 @@ fn control_law<R: Real>() -> Option<()> {
     let mut caustic = Solution::new(t, Activity::Ideal);
     caustic.add_formula(black_box("NaOH"), r::<R>(7.96)).ok()?;
     let settings = RegulatorSettings {
+        law: Law::Model,
         setpoint_ph: r::<R>(7.5),
         pi: PiTuning {
             integral_time_s: r::<R>(765.0),
