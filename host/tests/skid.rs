@@ -249,3 +249,23 @@ fn unreadable_files_are_exit_2() {
     usage_error(&["pack"]);
     usage_error(&["pack", "--template", "--out", "x.bin"]);
 }
+
+#[test]
+fn readme_quotes_the_example_file_and_lists_every_code() {
+    let readme = std::fs::read_to_string(concat!(env!("CARGO_MANIFEST_DIR"), "/../README.md")).unwrap();
+    assert!(readme.contains(&format!("```toml\n{TEMPLATE}```\n")), "README must quote the example skid verbatim");
+    // Every code line of `check --help` ("  201  error    message") is a README table row.
+    let help = run(&["check", "--help"], "").stdout;
+    let rows: Vec<&str> = help
+        .lines()
+        .filter(|l| l.split_whitespace().next().and_then(|n| n.parse::<u16>().ok()).is_some_and(|n| n >= 200))
+        .collect();
+    assert!(rows.len() >= 22, "{help}");
+    for row in rows {
+        let mut parts = row.split_whitespace();
+        let (number, kind) = (parts.next().unwrap(), parts.next().unwrap());
+        let message = parts.collect::<Vec<_>>().join(" ");
+        let line = format!("| {number} | {kind} | {message} |");
+        assert!(readme.contains(&line), "README lacks the row {line}");
+    }
+}
