@@ -1,8 +1,9 @@
 //! `phdose`: the host command-line front end of the phdose chemistry crate.
 //!
 //! The arguments are defined with `clap` (see `cli`); `phdose --help` lists the commands.
-//! Exit codes: 0 success, 2 any usage, input, solver or internal error (reported as
-//! `{"error": "..."}` on stdout with `--json`, as an `error: ...` message on stderr otherwise).
+//! Exit codes: 0 success, 1 a refusal verdict (`check` and `pack`: the boot checks refuse
+//! dosing), 2 any usage, input, solver or internal error (reported as `{"error": "..."}` on
+//! stdout with `--json`, as an `error: ...` message on stderr otherwise).
 //! The program never prints a panic or a backtrace.
 
 mod cli;

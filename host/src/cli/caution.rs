@@ -7,3 +7,7 @@ pub const CAUTION: &str =
 /// The caution that ends every readable `plan` (two lines).
 pub const PLAN_CAUTION: &str = "Caution: this plan is a model estimate, not a measurement. Interlocks (flow switch,\n\
 independent pH cut-outs, manual reset) must exist in hardware; see SAFETY.md.";
+
+/// The one line that ends every readable `check` and `pack` report.
+pub const CHECK_CAUTION: &str = "Caution: a passed boot check does not replace hardwired interlocks (flow switch, \
+independent pH cut-outs, manual reset); see SAFETY.md.";

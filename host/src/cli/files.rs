@@ -1,7 +1,8 @@
-//! Files a command reads and writes: the data file of `fit`, and the output files. A command
-//! that writes files takes `--out DIR` ([`OutArgs`]): the folder is created if missing, a file in
-//! it is never overwritten without `--force`, and every path written is reported. An option that
-//! names one file (`--csv FILE`, `--svg FILE`) writes exactly that file.
+//! Files a command reads and writes: the data file of `fit`, the skid file of `pack` and `check`,
+//! and the output files. A command that writes files takes `--out DIR` ([`OutArgs`]): the folder
+//! is created if missing, a file in it is never overwritten without `--force`, and every path
+//! written is reported. An option that names one file (`--csv FILE`, `--svg FILE`) writes exactly
+//! that file; `pack --out FILE` ([`write_new`]) also refuses to overwrite without `--force`.
 
 use std::fs::OpenOptions;
 use std::io::Write;
@@ -90,20 +91,39 @@ pub fn write_into(dir: &Path, force: bool, files: &[(&str, String)]) -> Result<V
         }
     }
     for (path, (_, content)) in paths.iter().zip(files) {
-        // Without --force, `create_new` also refuses a file that appeared since the check.
-        let mut options = OpenOptions::new();
-        options.write(true);
-        if force {
-            options.create(true).truncate(true);
-        } else {
-            options.create_new(true);
-        }
-        options
-            .open(path)
-            .and_then(|mut f| f.write_all(content.as_bytes()))
+        write_file(path, content.as_bytes(), force)
             .map_err(|e| CliError::new(format!("cannot write '{}': {e}", path.display())))?;
     }
     Ok(paths)
+}
+
+/// Writes `bytes` to `path`: replaces an existing file only with `force`; without it
+/// `create_new` also refuses a file that appeared since any earlier check.
+fn write_file(path: &Path, bytes: &[u8], force: bool) -> std::io::Result<()> {
+    let mut options = OpenOptions::new();
+    options.write(true);
+    if force {
+        options.create(true).truncate(true);
+    } else {
+        options.create_new(true);
+    }
+    options.open(path).and_then(|mut f| f.write_all(bytes))
+}
+
+/// Writes `bytes` to the one file `path` an option names (`pack --out FILE`): never over an
+/// existing file without `force`; `what` ("blob") names the file in the error.
+pub fn write_new(path: &Path, bytes: &[u8], force: bool, what: &str) -> Result<(), CliError> {
+    let shown = path.display();
+    if path.as_os_str().is_empty() {
+        return Err(CliError::new(format!("{what} file name is empty")));
+    }
+    write_file(path, bytes, force).map_err(|e| {
+        if e.kind() == std::io::ErrorKind::AlreadyExists {
+            CliError::new(format!("will not overwrite {what} file '{shown}': give --force, or another file name"))
+        } else {
+            CliError::new(format!("cannot write {what} file '{shown}': {e}"))
+        }
+    })
 }
 
 /// A figure as SVG text.
@@ -121,6 +141,12 @@ pub fn write(path: &str, content: &str, what: &str) -> Result<(), CliError> {
 
 /// Reads a text file of at most `max_bytes`; `what` names it in the error.
 pub fn read(path: &str, max_bytes: u64, what: &str) -> Result<String, CliError> {
+    String::from_utf8(read_bytes(path, max_bytes, what)?)
+        .map_err(|_| CliError::new(format!("{what} '{path}' is not valid UTF-8")))
+}
+
+/// Reads a file of at most `max_bytes` as bytes; `what` names it in the error.
+pub fn read_bytes(path: &str, max_bytes: u64, what: &str) -> Result<Vec<u8>, CliError> {
     use std::io::Read;
     let file = std::fs::File::open(path).map_err(|e| CliError::new(format!("cannot open {what} '{path}': {e}")))?;
     let mut bytes = Vec::new();
@@ -130,7 +156,7 @@ pub fn read(path: &str, max_bytes: u64, what: &str) -> Result<String, CliError> 
     if u64::try_from(bytes.len()).unwrap_or(u64::MAX) > max_bytes {
         return Err(CliError::new(format!("{what} '{path}' is larger than {max_bytes} bytes")));
     }
-    String::from_utf8(bytes).map_err(|_| CliError::new(format!("{what} '{path}' is not valid UTF-8")))
+    Ok(bytes)
 }
 
 #[cfg(test)]
@@ -169,6 +195,20 @@ mod tests {
         write_into(&dir, true, &files("new a", "new b")).unwrap();
         assert_eq!(std::fs::read_to_string(dir.join("b.svg")).unwrap(), "new b");
         assert_eq!(std::fs::read_to_string(dir.join("a.csv")).unwrap(), "new a");
+    }
+
+    #[test]
+    fn one_file_is_kept_without_force() {
+        let dir = scratch("one");
+        std::fs::create_dir_all(&dir).unwrap();
+        let path = dir.join("skid.bin");
+        write_new(&path, b"first", false, "blob").unwrap();
+        let e = write_new(&path, b"second", false, "blob").unwrap_err();
+        assert!(e.message().contains("skid.bin") && e.message().contains("--force"), "{e}");
+        assert_eq!(std::fs::read(&path).unwrap(), b"first");
+        write_new(&path, b"second", true, "blob").unwrap();
+        assert_eq!(std::fs::read(&path).unwrap(), b"second");
+        assert!(write_new(Path::new(""), b"x", true, "blob").unwrap_err().message().contains("empty"));
     }
 
     #[test]

@@ -1,8 +1,10 @@
 //! The command line (`clap` derive), dispatch, output modes and exit codes.
 
 mod caution;
+mod check;
 mod composition;
 mod conditions;
+mod config;
 mod curve;
 mod error;
 mod files;
@@ -10,6 +12,7 @@ mod fit;
 mod format;
 mod json;
 mod layout;
+mod pack;
 mod plan;
 mod reagent;
 mod salt;
@@ -30,12 +33,34 @@ pub use error::CliError;
 /// Exit code of every failure (usage, input, solver or internal error).
 pub const FAILURE_CODE: u8 = 2;
 
+/// Exit code of a refusal verdict: the boot checks of `check` and `pack` refuse dosing.
+pub const REFUSED_CODE: u8 = 1;
+
+/// What a command with a go/no-go verdict prints and its exit code (0 or [`REFUSED_CODE`]).
+#[derive(Debug)]
+pub struct Reply {
+    /// For stdout.
+    pub stdout: String,
+    /// Exit code.
+    pub code: u8,
+}
+
+impl From<String> for Reply {
+    /// A plain result: exit code 0.
+    fn from(stdout: String) -> Self {
+        Self { stdout, code: 0 }
+    }
+}
+
 const AFTER_HELP: &str = "\
-With --json, the request is one JSON object on stdin and the result one JSON object on stdout.
+With --json, the request is one JSON object on stdin and the result one JSON object on stdout
+(`pack` and `check` read their skid FILE instead).
 
 Exit codes:
   0  a result was computed. For `plan` this includes an unreachable setpoint and failed
-     checks: they are results (\"reachable\": false, \"verdicts\"), not errors.
+     checks: they are results (\"reachable\": false, \"verdicts\"), not errors. For `check`:
+     dosing allowed; for `pack`: the blob was written.
+  1  `check` and `pack`: the boot checks refuse dosing with the skid (the report says why).
   2  any usage, input, solver or internal error, and a refused (ill-conditioned) fit:
      {\"error\": \"...\"} on stdout with --json, a message on stderr otherwise.
 Defaults: 25 °C, Davies activities. Amounts are mol/L.
@@ -45,6 +70,9 @@ Examples:
   echo '{\"salt\": \"Na2HPO4\", \"concentration_mol_per_l\": 0.05}' | phdose salt --json
   phdose plan --example
   phdose curve --example --out figures
+  phdose pack --template > skid.toml
+  phdose pack skid.toml --out skid.bin
+  phdose check skid.bin
   phdose help plan
   phdose completions bash > ~/.local/share/bash-completion/completions/phdose
 
@@ -66,6 +94,8 @@ enum Command {
     Plan(plan::Args),
     Curve(curve::Args),
     Fit(fit::Args),
+    Pack(pack::Args),
+    Check(check::Args),
     /// print a shell completion script for phdose
     #[command(
         after_help = "Install (bash): phdose completions bash > ~/.local/share/bash-completion/completions/phdose\n\
@@ -118,8 +148,8 @@ pub enum Outcome {
 }
 
 impl Outcome {
-    fn success(stdout: String) -> Self {
-        Self::Text { stdout, stderr: String::new(), code: 0 }
+    fn reply(Reply { stdout, code }: Reply) -> Self {
+        Self::Text { stdout, stderr: String::new(), code }
     }
 
     fn failure(mode: Mode, error: &CliError) -> Self {
@@ -179,17 +209,19 @@ pub fn run(argv: &[OsString], stdin: &mut dyn Read) -> Outcome {
         }
         Err(e) => return Outcome::Clap(e),
     };
-    let result = match cli.command {
-        Command::Speciate(a) => speciate::run(a, stdin),
-        Command::Salt(a) => salt::run(a, stdin),
-        Command::Substances(a) => substances::run(a),
-        Command::Plan(a) => plan::run(a, stdin),
-        Command::Curve(a) => curve::run(a, stdin),
-        Command::Fit(a) => fit::run(a, stdin),
-        Command::Completions { shell } => Ok(completions(shell)),
+    let result: Result<Reply, CliError> = match cli.command {
+        Command::Speciate(a) => speciate::run(a, stdin).map(Reply::from),
+        Command::Salt(a) => salt::run(a, stdin).map(Reply::from),
+        Command::Substances(a) => substances::run(a).map(Reply::from),
+        Command::Plan(a) => plan::run(a, stdin).map(Reply::from),
+        Command::Curve(a) => curve::run(a, stdin).map(Reply::from),
+        Command::Fit(a) => fit::run(a, stdin).map(Reply::from),
+        Command::Pack(a) => pack::run(a),
+        Command::Check(a) => check::run(a),
+        Command::Completions { shell } => Ok(completions(shell).into()),
     };
     match result {
-        Ok(text) => Outcome::success(text),
+        Ok(reply) => Outcome::reply(reply),
         Err(e) => Outcome::failure(mode, &e),
     }
 }
