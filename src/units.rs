@@ -26,14 +26,24 @@ pub struct TemperatureOutOfRange {
 }
 
 /// A number as the crate's messages print it: plainly between 1e-4 and 1e6 (and 0, NaN, ±inf),
-/// in scientific notation otherwise, so that 1e300 is not echoed as 301 digits.
+/// in scientific notation otherwise, so that 1e300 is not echoed as 301 digits. A value that is
+/// exactly an `f32` (a setting widened from `f32`) prints as that `f32`: 0.3, not
+/// 0.30000001192092896.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Compact(pub f64);
 
 impl core::fmt::Display for Compact {
     fn fmt(&self, f: &mut core::fmt::Formatter<'_>) -> core::fmt::Result {
         let v = self.0;
-        if v == 0.0 || !v.is_finite() || (1e-4..1e6).contains(&v.abs()) { write!(f, "{v}") } else { write!(f, "{v:e}") }
+        #[allow(clippy::cast_possible_truncation, reason = "only used when the value is exactly an f32")]
+        let narrow = v as f32;
+        let plain = v == 0.0 || !v.is_finite() || (1e-4..1e6).contains(&v.abs());
+        match (f64::from(narrow) == v, plain) {
+            (true, true) => write!(f, "{narrow}"),
+            (true, false) => write!(f, "{narrow:e}"),
+            (false, true) => write!(f, "{v}"),
+            (false, false) => write!(f, "{v:e}"),
+        }
     }
 }
 
@@ -231,6 +241,8 @@ mod tests {
         assert_eq!(std::format!("{}", Compact(-1e-300)), "-1e-300");
         assert_eq!(std::format!("{}", Compact(0.001)), "0.001");
         assert_eq!(std::format!("{}", Compact(0.0)), "0");
+        assert_eq!(std::format!("{}", Compact(f64::from(0.3_f32))), "0.3");
+        assert_eq!(std::format!("{}", Compact(0.1 + 0.2)), "0.30000000000000004");
         let t = std::format!("{}", TemperatureOutOfRange { celsius: -1e-300 });
         assert!(t.starts_with("temperature -1e-300 °C"), "{t}");
         let huge = std::format!("{}", InvalidInput { quantity: Quantity::Flow, value: 1e300 });

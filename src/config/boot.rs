@@ -84,6 +84,32 @@ pub enum Code {
 }
 
 impl Code {
+    /// Every code, errors (2xx) then warnings (3xx), in number order.
+    pub const ALL: [Self; 22] = [
+        Self::BlobUnreadable,
+        Self::SettingOutOfRange,
+        Self::FlowsInconsistent,
+        Self::UnknownSubstance,
+        Self::InfluentComposition,
+        Self::NoReagent,
+        Self::LimitsInconsistent,
+        Self::SetpointOutsideLimits,
+        Self::Unreachable,
+        Self::BeyondPump,
+        Self::TooSteep,
+        Self::NoProbe,
+        Self::CalibrationRejected,
+        Self::OverdoseGuard,
+        Self::Watchdog,
+        Self::ReagentStrength,
+        Self::PumpSettings,
+        Self::ModelFailed,
+        Self::CalibrationOld,
+        Self::TooSteepAtFlowLimit,
+        Self::ResolutionLimited,
+        Self::SingleProbe,
+    ];
+
     /// The stable numeric code.
     pub const fn number(self) -> u16 {
         match self {
@@ -299,7 +325,7 @@ pub fn check<R: Real>(skid: &Skid) -> BootReport {
         ok &= range(&mut report, name, v, lo, hi, open);
     }
     if let Err(RegulatorError::Setting { name, value }) = build::regulator_settings::<R>(c).validate() {
-        report.push(Finding::setting(name, value));
+        report.push(Finding::setting(control_key(name), value));
         ok = false;
     }
     if ok && !(i.min_flow_l_per_h <= i.design_flow_l_per_h && i.design_flow_l_per_h <= i.max_flow_l_per_h) {
@@ -393,6 +419,25 @@ pub fn check<R: Real>(skid: &Skid) -> BootReport {
     }
     probe_checks::<R>(&mut report, skid);
     report
+}
+
+/// The settings file's key of a control-law setting (the law names its settings bare).
+fn control_key(name: &'static str) -> &'static str {
+    match name {
+        "setpoint_ph" => "control.setpoint_ph",
+        "integral_time_s" => "control.integral_time_s",
+        "closed_loop_time_constant_s" => "control.closed_loop_time_constant_s",
+        "rate_limit_l_per_h_per_s" => "control.rate_limit_l_per_h_per_s",
+        "flow_dead_band_fraction" | "correction_dead_band_fraction" => "control.flow_dead_band_fraction",
+        "temperature_dead_band_c" => "control.temperature_dead_band_c",
+        "tank_volume_l" => "control.tank_volume_l",
+        "adaptation_filter_time_s" => "control.adaptation_filter_time_s",
+        "adaptation_bound_fraction" => "control.adaptation_bound_fraction",
+        "residual_bound_ph" => "control.residual_bound_ph",
+        "residual_time_s" => "control.residual_time_s",
+        "switch_dead_band_ph" => "control.switch_dead_band_ph",
+        other => other,
+    }
 }
 
 fn overdose_limits(report: &mut BootReport, s: &ReagentSettings, name: &'static str) {

@@ -389,7 +389,7 @@ mod tests {
     #[test]
     fn the_first_reason_in_priority_order_is_latched_with_its_numbers() {
         let mut c = Conditions::default();
-        c.set(TripReason::ReagentLow, 1.0, 0.0);
+        c.set(TripReason::OverdoseHour, 3.0, 2.5);
         c.set(TripReason::PhHigh, 11.2, 10.5);
         let mut s = Supervisor::new();
         s.step(true, &Conditions::default(), ModeRequest::Auto, false);
@@ -397,5 +397,11 @@ mod tests {
         let t = s.latched().unwrap();
         assert_eq!((t.reason, t.value, t.limit), (TripReason::PhHigh, 11.2, 10.5));
         assert_eq!(std::format!("{t}"), "trip 102: pH above the high hard limit (11.2 against limit 10.5)");
+        // A broken probe makes the pH meaningless: it is the root cause, latched first.
+        c.set(TripReason::ProbeFault, 0.0, 1.0);
+        let mut s = Supervisor::new();
+        s.step(true, &Conditions::default(), ModeRequest::Auto, false);
+        s.step(true, &c, ModeRequest::Auto, false);
+        assert_eq!(s.latched().map(|t| t.reason), Some(TripReason::ProbeFault));
     }
 }

@@ -22,6 +22,7 @@ type Edit = fn(&mut Skid);
 const BAD: &[(&str, Edit, Code)] = &[
     ("band of zero", |s| s.control.band_ph = 0.0, Code::SettingOutOfRange),
     ("NaN setpoint", |s| s.control.setpoint_ph = f32::NAN, Code::SettingOutOfRange),
+    ("integral time of a week", |s| s.control.integral_time_s = 6e5, Code::SettingOutOfRange),
     ("tick of an hour", |s| s.control.tick_s = 3600.0, Code::SettingOutOfRange),
     ("negative integral time", |s| s.control.integral_time_s = -5.0, Code::SettingOutOfRange),
     ("design flow above max", |s| s.influent.design_flow_l_per_h = 5000.0, Code::FlowsInconsistent),
@@ -144,6 +145,9 @@ fn every_single_bit_flip_of_the_blob_is_refused_by_the_boot_check() {
 
 #[test]
 fn codes_are_stable_and_messages_carry_the_numbers() {
+    let numbers = Code::ALL.map(Code::number);
+    assert!(numbers.windows(2).all(|w| w[0] < w[1]), "{numbers:?}");
+    assert_eq!(numbers.iter().filter(|n| **n < 300).count(), 18);
     let f = Finding::named(Code::BeyondPump, "caustic", 12.5, 10.0);
     assert_eq!(std::format!("{f}"), "210: dose exceeds the pump's maximum (caustic): 12.5 (limit 10)");
     assert!(Code::BeyondPump.is_error() && !Code::SingleProbe.is_error());
