@@ -7,4 +7,8 @@
 //! transport delay (see [`plant`]). [`run`] ticks the controller at its configured period and
 //! integrates the plant in between; [`kpi`] scores the run.
 
+pub mod baseline;
+pub mod kpi;
+pub mod plant;
+pub mod run;
 pub mod scenario;

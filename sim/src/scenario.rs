@@ -141,3 +141,56 @@ pub struct Scenario {
     /// The run.
     pub run: RunSettings,
 }
+
+/// The built-in scenario (invented): the rinse-water tank of a fictional plating shop, with the
+/// built-in example skid as deployed. The true rinse water carries a little phosphate cleaner
+/// and 20 % more bicarbonate than the skid was configured with; the probes lag, drift apart and
+/// are noisy; the caustic pump delivers 3 % less than commanded. Eight hours: the rinse flow
+/// steps up by 30 % after two hours and back after five, and a 20-minute slug of pickling acid
+/// (1.2 mmol/L more sulfuric acid) arrives after three and a half hours.
+pub fn plating_rinse() -> Scenario {
+    let influent: BTreeMap<String, f64> = [("H2SO4", 0.0012), ("HCl", 0.0006), ("NaHCO3", 0.0012), ("Na2HPO4", 0.0002)]
+        .into_iter()
+        .map(|(k, v)| (k.to_owned(), v))
+        .collect();
+    Scenario {
+        skid: phdose::config::example::plating_rinse(),
+        plant: PlantSettings {
+            volume_l: 250.0,
+            outlet_l_per_h: None,
+            influent: Some(influent),
+            temperature_c: Some(18.0),
+            temperature_swing_c: 2.0,
+            probe_dead_time_s: 10.0,
+            probe_lag_s: 15.0,
+            probe_noise_mv: 0.3,
+            probe_drift_mv_per_h: vec![0.4, -0.3],
+            reagent_delay_s: 8.0,
+            pump_delivery_factor: 0.97,
+            reagent_strength_factor: 1.0,
+            caustic_stuck_on_at_s: None,
+        },
+        disturbances: Disturbances {
+            flow: vec![
+                FlowChange { at_s: 7200.0, to_factor: 1.3, ramp_s: 0.0 },
+                FlowChange { at_s: 18_000.0, to_factor: 1.0, ramp_s: 0.0 },
+            ],
+            daily_flow_amplitude: 0.0,
+            slugs: vec![Slug {
+                at_s: 12_600.0,
+                duration_s: 1200.0,
+                adds: [("H2SO4".to_owned(), 0.0012)].into_iter().collect(),
+            }],
+            random_slugs_per_day: 0.0,
+            random_slug_adds: BTreeMap::new(),
+            random_slug_duration_s: 0.0,
+        },
+        run: RunSettings {
+            duration_s: 8.0 * 3600.0,
+            step_s: 1.0,
+            seed: 1,
+            start_at_setpoint: true,
+            reagent_price_per_l: Some(0.35),
+        },
+    }
+}

@@ -5,7 +5,9 @@
 //!   number of strokes; the fraction left over is carried to the next tick, so the delivered
 //!   volume follows the demanded one exactly on average (never more than one stroke behind).
 //! - **Duty** (analog 4–20 mA or PWM): a duty 0–1 maps linearly to 0 – the pump's maximum flow,
-//!   quantised to the output's resolution; a demand below the pump's minimum duty gives 0 (a
+//!   quantised to the output's resolution with error feedback (the rounding error of one tick
+//!   is carried into the next), so the mean duty follows the demand between two output steps
+//!   instead of sticking on one of them; a demand below the pump's minimum duty gives 0 (a
 //!   metering pump does not run reliably below it).
 //!
 //! Either way the output says the flow the command actually delivers, which is what the loop
@@ -135,14 +137,15 @@ pub struct PumpOutput<R: Real> {
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct PumpChannel<R: Real> {
     drive: PumpDrive<R>,
-    /// Strokes demanded but not yet given (0 ≤ carry < 1).
-    carry_strokes: R,
+    /// Pulse: strokes demanded but not yet given (0 ≤ carry < 1). Duty: the rounding error
+    /// carried to the next tick, in output steps (|carry| ≤ ½).
+    carry: R,
 }
 
 impl<R: Real> PumpChannel<R> {
     /// A channel for `drive`, at rest.
     pub fn new(drive: PumpDrive<R>) -> Self {
-        Self { drive, carry_strokes: R::ZERO }
+        Self { drive, carry: R::ZERO }
     }
 
     /// The drive.
@@ -152,7 +155,7 @@ impl<R: Real> PumpChannel<R> {
 
     /// Stops the pump and forgets the carried fraction (a stopped pump starts afresh).
     pub fn stop(&mut self) -> PumpOutput<R> {
-        self.carry_strokes = R::ZERO;
+        self.carry = R::ZERO;
         self.command(R::ZERO, R::ZERO)
     }
 
@@ -166,12 +169,12 @@ impl<R: Real> PumpChannel<R> {
         match self.drive {
             PumpDrive::Pulse { stroke_volume_ml, max_strokes_per_min } => {
                 let stroke_l = stroke_volume_ml / R::from_f64(1000.0);
-                let wanted = q * hours / stroke_l + self.carry_strokes;
+                let wanted = q * hours / stroke_l + self.carry;
                 // Never more strokes than the pump can make in the tick.
                 let cap = max_strokes_per_min * dt / R::from_f64(60.0);
                 let whole = floor_u32(wanted.min(cap));
                 let given = R::from_f64(f64::from(whole));
-                self.carry_strokes = if q > R::ZERO { (wanted - given).max(R::ZERO).min(R::ONE) } else { R::ZERO };
+                self.carry = if q > R::ZERO { (wanted - given).max(R::ZERO).min(R::ONE) } else { R::ZERO };
                 let litres = given * stroke_l;
                 let mean = if hours > R::ZERO { litres / hours } else { R::ZERO };
                 PumpOutput { command: PumpCommand::Strokes(whole), delivered_l_per_h: mean, delivered_l: litres }
@@ -180,12 +183,16 @@ impl<R: Real> PumpChannel<R> {
                 let steps = R::from_f64(f64::from(resolution_steps));
                 let raw = q / max_l_per_h;
                 let duty = if raw < min_duty || raw <= R::ZERO {
+                    self.carry = R::ZERO;
                     R::ZERO
                 } else {
-                    // Round to the nearest output step, at least the minimum duty.
-                    R::from_f64(f64::from(floor_u32(raw * steps + R::from_f64(0.5)))) / steps
+                    // Nearest output step of the demand plus the carried rounding error, at least
+                    // the minimum duty, at most 1; what was rounded away is carried on.
+                    let wanted = raw * steps + self.carry;
+                    let level = R::from_f64(f64::from(floor_u32(wanted + R::from_f64(0.5)))).min(steps);
+                    self.carry = (wanted - level).max(R::from_f64(-0.5)).min(R::from_f64(0.5));
+                    (level / steps).max(min_duty)
                 };
-                let duty = duty.min(R::ONE);
                 let mean = duty * max_l_per_h;
                 PumpOutput { command: PumpCommand::Duty(duty), delivered_l_per_h: mean, delivered_l: mean * hours }
             }
@@ -248,13 +255,16 @@ mod tests {
         let mut ch = PumpChannel::new(drive);
         // 0.4 L/h is below the 0.5 L/h minimum: off.
         assert_eq!(ch.command(0.4, 1.0).command, PumpCommand::Duty(0.0));
-        // 1.234 L/h: duty 0.12 (nearest step), 1.2 L/h delivered.
+        // 1.234 L/h: duty 0.12 (nearest step), 1.2 L/h delivered on the first tick …
         let out = ch.command(1.234, 1.0);
         match out.command {
             PumpCommand::Duty(d) => assert!((d - 0.12).abs() < 1e-6, "{d}"),
             other => panic!("{other:?}"),
         }
         assert!((out.delivered_l_per_h - 1.2).abs() < 1e-5);
+        // … and on average the demand itself: the rounding error is carried (0.12 / 0.13 mix).
+        let mean = (0..999).map(|_| ch.command(1.234, 1.0).delivered_l_per_h).sum::<f32>() / 999.0;
+        assert!((mean - 1.234).abs() < 2e-3, "mean {mean}");
         // Clamped at the maximum.
         assert!((ch.command(50.0, 1.0).delivered_l_per_h - 10.0).abs() < 1e-5);
     }

@@ -404,7 +404,10 @@ impl<R: Real, const N: usize> Regulator<R, N> {
                 let tracked = if ms == side { q } else { R::ZERO };
                 self.pi.track(&self.settings.pi, ff_flow, error_q, tracked);
             }
-            _ => self.pi.track(&self.settings.pi, ff_flow, error_q, R::ZERO),
+            // Stopped (idle, tripped, no flow): nothing to be bumpless from. The integrator is
+            // cleared, so dosing restarts from the feed-forward (rate-limited from zero), not
+            // from an integrator wound down to cancel it.
+            _ => self.pi.reset(),
         }
 
         // Adaptation's raw estimate (two evaluations per reagent, no solve), then the model
