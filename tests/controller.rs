@@ -374,6 +374,11 @@ fn overdose_in_a_day_trips() {
 fn a_pump_that_delivers_nothing_trips_on_model_mismatch() {
     let mut skid = example::plating_rinse();
     skid.interlocks.mismatch_trip_s = 600.0;
+    // The loop pushes a dead pump to its maximum: lift the overdose guard so that this test sees
+    // the model mismatch alone (the guard has its own tests).
+    let caustic = skid.caustic.as_mut().unwrap();
+    caustic.max_per_hour_l = 20.0;
+    caustic.max_per_day_l = 200.0;
     trips(&skid, TripReason::ModelMismatch, 3600.0, |rig, _| rig.dead_pump = true, |rig| rig.dead_pump = false);
 }
 

@@ -64,8 +64,12 @@ pub fn plating_rinse() -> Skid {
             low_limit_ph: 1.0,
             high_limit_ph: 10.0,
             tick_s: 5.0,
-            integral_time_s: residence_s + 15.0,
-            closed_loop_time_constant_s: 300.0,
+            // SIMC (Skogestad 2003, from memory) on the flow-mapped process, which the law makes
+            // first order with unit gain: τ = the residence time (750 s), θ ≈ 35 s (sample-line
+            // dead time, probe lag, reagent line, half a tick), τc = θ: Ti = min(τ, 4·(τc + θ))
+            // = 140 s (rounded) and Kc = τ/(τc + θ) ≈ 10.6, i.e. λ = Ti/Kc ≈ 15 s.
+            integral_time_s: 140.0,
+            closed_loop_time_constant_s: 15.0,
             rate_limit_l_per_h_per_s: 0.05,
             switch_dead_band_ph: 0.3,
             flow_dead_band_fraction: 0.02,
