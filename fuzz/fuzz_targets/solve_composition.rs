@@ -20,32 +20,12 @@ use phdose::chem::{
 };
 use phdose::units::Celsius;
 
-/// Little byte reader that never fails.
-struct Input<'a> {
-    data: &'a [u8],
-    pos: usize,
-}
+#[path = "input.rs"]
+mod input;
+use input::Input;
 
+/// The hostile decoders of this target (the differential target only decodes plausible values).
 impl Input<'_> {
-    fn u8(&mut self) -> u8 {
-        let b = self.data.get(self.pos).copied().unwrap_or(0);
-        self.pos = self.pos.saturating_add(1);
-        b
-    }
-    /// `true` for an even byte.
-    fn flag(&mut self) -> bool {
-        self.u8() & 1 == 0
-    }
-    fn u16(&mut self) -> u16 {
-        u16::from_le_bytes([self.u8(), self.u8()])
-    }
-    fn u32(&mut self) -> u32 {
-        u32::from_le_bytes([self.u8(), self.u8(), self.u8(), self.u8()])
-    }
-    fn u64(&mut self) -> u64 {
-        u64::from(self.u32()) | (u64::from(self.u32()) << 32)
-    }
-
     /// Edge values every float input should survive.
     fn special(&mut self) -> f64 {
         const SPECIAL: [f64; 18] = [
@@ -80,8 +60,7 @@ impl Input<'_> {
             3 => f64::from(self.u32()) / f64::from(u32::MAX) * 20.0,
             _ => {
                 // mantissa 0–1 × 10^-(0..=12): dilute waters, where real plants live.
-                let m = f64::from(self.u16()) / f64::from(u16::MAX);
-                m * 10f64.powi(-i32::from(self.u8() % 13))
+                self.uniform(0.0, 1.0) * 10f64.powi(-i32::from(self.u8() % 13))
             }
         }
     }
@@ -91,7 +70,7 @@ impl Input<'_> {
         match self.u8() % 4 {
             0 => f64::from_bits(self.u64()),
             1 => self.special(),
-            _ => f64::from(self.u16()) / f64::from(u16::MAX) * 22.0 - 3.0,
+            _ => self.uniform(-3.0, 19.0),
         }
     }
 
@@ -100,7 +79,7 @@ impl Input<'_> {
         match self.u8() % 4 {
             0 => f64::from_bits(self.u64()),
             1 => self.special(),
-            _ => f64::from(self.u16()) / f64::from(u16::MAX) * 110.0 - 5.0,
+            _ => self.uniform(-5.0, 105.0),
         }
     }
 
@@ -109,7 +88,7 @@ impl Input<'_> {
         match self.u8() % 3 {
             0 => f64::from_bits(self.u64()),
             1 => self.special(),
-            _ => f64::from(self.u16()) / f64::from(u16::MAX) * 30.0 - 15.0,
+            _ => self.uniform(-15.0, 15.0),
         }
     }
 }
@@ -144,16 +123,16 @@ fn custom_system(inp: &mut Input<'_>) -> AcidBaseSystem {
 }
 
 /// Invariants of every successful solve. `per_solve_limit` is the iteration limit of one inner
-/// solve; `cold_ionic` is 1 when the solve had no warm ionic strength (Davies mode then spends
-/// one evaluation on the initial ionic strength, counted in `iterations`), else 0.
-fn check<R: Real, const N: usize>(s: &Solution<R, N>, eq: &Equilibrium<R>, per_solve_limit: u32, cold_ionic: u32) {
+/// solve.
+fn check<R: Real, const N: usize>(s: &Solution<R, N>, eq: &Equilibrium<R>, per_solve_limit: u32) {
     let ph = eq.ph.to_f64();
     assert!(ph.is_finite() && (PH_MIN..=PH_MAX).contains(&ph), "pH {ph} outside [{PH_MIN}, {PH_MAX}]");
     // Documented bound (src/chem/solve.rs): one inner solve ≤ min(limit, max_ph_iterations);
-    // Davies sums at most MAX_ACTIVITY_ITERATIONS inner solves (+ the initial evaluation).
+    // Davies sums at most MAX_ACTIVITY_ITERATIONS inner solves + the evaluation that computes
+    // the first ionic strength from the composition (every start, warm or cold, spends it).
     let bound = match s.activity() {
         Activity::Ideal => per_solve_limit,
-        Activity::Davies => MAX_ACTIVITY_ITERATIONS * per_solve_limit + cold_ionic,
+        Activity::Davies => MAX_ACTIVITY_ITERATIONS * per_solve_limit + 1,
     };
     assert!(eq.iterations >= 1 && eq.iterations <= bound, "{} iterations, bound {bound}", eq.iterations);
     let beta = eq.buffer_capacity_mol_per_l_per_ph.to_f64();
@@ -161,6 +140,8 @@ fn check<R: Real, const N: usize>(s: &Solution<R, N>, eq: &Equilibrium<R>, per_s
     let ionic = eq.ionic_strength_mol_per_l.to_f64();
     assert!(ionic.is_finite() && ionic >= 0.0, "ionic strength {ionic}");
     assert!(eq.residual_eq_per_l.to_f64().is_finite(), "residual {:?}", eq.residual_eq_per_l.to_f64());
+    let resolution = eq.resolution_ph.to_f64();
+    assert!(resolution.is_finite() && resolution >= 0.0, "resolution {resolution}");
     match s.activity() {
         Activity::Ideal => assert_eq!(eq.davies_factor.to_f64(), 0.0),
         Activity::Davies => {
@@ -224,15 +205,15 @@ fn run<R: Real, const N: usize>(inp: &mut Input<'_>, activity: Activity) {
 
     let full = max_ph_iterations::<R>();
     let outcome = match inp.u8() % 5 {
-        0 => s.solve().map(|eq| check(&s, &eq, full, 1)),
-        1 => s.solve_from(R::from_f64(inp.ph())).map(|eq| check(&s, &eq, full, 1)),
+        0 => s.solve().map(|eq| check(&s, &eq, full)),
+        1 => s.solve_from(R::from_f64(inp.ph())).map(|eq| check(&s, &eq, full)),
         2 => {
             // Control loop: solve, change the strong charge a little, solve warm.
             s.solve().and_then(|first| {
-                check(&s, &first, full, 1);
+                check(&s, &first, full);
                 let mut next = s.clone();
                 let _ = next.add_strong_ion(i8::from_le_bytes([inp.u8()]), R::from_f64(inp.amount()));
-                next.solve_warm(&first).map(|eq| check(&next, &eq, full, 0))
+                next.solve_warm(&first).map(|eq| check(&next, &eq, full))
             })
         }
         3 => {
@@ -241,8 +222,7 @@ fn run<R: Real, const N: usize>(inp: &mut Input<'_>, activity: Activity) {
             let max_iterations = if inp.flag() { inp.u32() % 100 } else { inp.u32() };
             let newton = inp.flag();
             let options = SolverOptions { warm_start_ph, warm_start_ionic_strength, max_iterations, newton };
-            let extra = u32::from(warm_start_ionic_strength.is_none());
-            s.solve_with(options).map(|eq| check(&s, &eq, max_iterations.min(full), extra))
+            s.solve_with(options).map(|eq| check(&s, &eq, max_iterations.min(full)))
         }
         _ => {
             // Warm start from a fabricated (possibly absurd) previous equilibrium.
@@ -253,8 +233,9 @@ fn run<R: Real, const N: usize>(inp: &mut Input<'_>, activity: Activity) {
                 ionic_strength_mol_per_l: R::from_f64(inp.amount()),
                 residual_eq_per_l: R::from_f64(inp.amount()),
                 davies_factor: R::from_f64(inp.amount()),
+                resolution_ph: R::from_f64(inp.amount()),
             };
-            s.solve_warm(&previous).map(|eq| check(&s, &eq, full, 0))
+            s.solve_warm(&previous).map(|eq| check(&s, &eq, full))
         }
     };
     if let Err(e) = outcome {
@@ -263,7 +244,7 @@ fn run<R: Real, const N: usize>(inp: &mut Input<'_>, activity: Activity) {
 }
 
 fuzz_target!(|data: &[u8]| {
-    let mut inp = Input { data, pos: 0 };
+    let mut inp = Input::new(data);
     let flags = inp.u8();
     let activity = if flags & 2 == 0 { Activity::Ideal } else { Activity::Davies };
     match (flags & 1 == 0, flags & 4 == 0) {
