@@ -16,19 +16,59 @@ pub const DAY_BUCKETS: usize = 24;
 const HOUR_BUCKET_S: f64 = 300.0;
 const DAY_BUCKET_S: f64 = 3600.0;
 
+/// One sliding window: `N` buckets of `bucket_s` seconds in a ring.
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+struct Window<R: Real, const N: usize> {
+    buckets_l: [R; N],
+    /// The current bucket (ring position).
+    current: usize,
+    /// Seconds into the current bucket.
+    elapsed_s: R,
+}
+
+impl<R: Real, const N: usize> Window<R, N> {
+    const EMPTY: () = assert!(N > 0);
+
+    fn new() -> Self {
+        let () = Self::EMPTY;
+        Self { buckets_l: [R::ZERO; N], current: 0, elapsed_s: R::ZERO }
+    }
+
+    /// Moves the window on by `dt_s` (≥ 0), clearing each bucket it enters. At most `N` moves:
+    /// after that every bucket has been cleared once.
+    fn advance(&mut self, dt_s: R, bucket_s: f64) {
+        let bucket = R::from_f64(bucket_s);
+        self.elapsed_s += dt_s;
+        let mut moves = 0;
+        while self.elapsed_s >= bucket && moves < N {
+            self.elapsed_s -= bucket;
+            self.current = (self.current + 1) % N;
+            if let Some(b) = self.buckets_l.get_mut(self.current) {
+                *b = R::ZERO;
+            }
+            moves += 1;
+        }
+        self.elapsed_s = self.elapsed_s.min(bucket);
+    }
+
+    fn add(&mut self, litres: R) {
+        if let Some(b) = self.buckets_l.get_mut(self.current) {
+            *b += litres;
+        }
+    }
+
+    fn total_l(&self) -> R {
+        self.buckets_l.iter().fold(R::ZERO, |a, b| a + *b)
+    }
+}
+
 /// Volume delivered by one pump over sliding windows.
 #[derive(Clone, Copy, Debug, PartialEq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct DoseLedger<R: Real> {
-    five_minutes_l: [R; HOUR_BUCKETS],
-    hours_l: [R; DAY_BUCKETS],
-    /// Seconds into the current five-minute bucket.
-    in_five_s: R,
-    /// Seconds into the current hour bucket.
-    in_hour_s: R,
-    /// Current buckets (the ring positions).
-    five: usize,
-    hour: usize,
+    hour: Window<R, HOUR_BUCKETS>,
+    day: Window<R, DAY_BUCKETS>,
     /// Everything delivered since start, L.
     total_l: R,
 }
@@ -42,15 +82,7 @@ impl<R: Real> Default for DoseLedger<R> {
 impl<R: Real> DoseLedger<R> {
     /// An empty ledger.
     pub fn new() -> Self {
-        Self {
-            five_minutes_l: [R::ZERO; HOUR_BUCKETS],
-            hours_l: [R::ZERO; DAY_BUCKETS],
-            in_five_s: R::ZERO,
-            in_hour_s: R::ZERO,
-            five: 0,
-            hour: 0,
-            total_l: R::ZERO,
-        }
+        Self { hour: Window::new(), day: Window::new(), total_l: R::ZERO }
     }
 
     /// Books `litres` delivered over the last `dt_s` seconds (the volume goes into the bucket
@@ -58,48 +90,23 @@ impl<R: Real> DoseLedger<R> {
     /// [`HOUR_BUCKETS`] + [`DAY_BUCKETS`] bucket moves for a tick of a day or longer.
     pub fn book(&mut self, litres: R, dt_s: R) {
         let dt = if dt_s.is_finite() && dt_s > R::ZERO { dt_s } else { R::ZERO };
-        self.in_five_s += dt;
-        // At most HOUR_BUCKETS moves: after that every bucket has been cleared once.
-        let mut moves = 0;
-        while self.in_five_s >= R::from_f64(HOUR_BUCKET_S) && moves < HOUR_BUCKETS {
-            self.in_five_s -= R::from_f64(HOUR_BUCKET_S);
-            self.five = (self.five + 1) % HOUR_BUCKETS;
-            if let Some(b) = self.five_minutes_l.get_mut(self.five) {
-                *b = R::ZERO;
-            }
-            moves += 1;
-        }
-        self.in_five_s = self.in_five_s.min(R::from_f64(HOUR_BUCKET_S));
-        self.in_hour_s += dt;
-        let mut moves = 0;
-        while self.in_hour_s >= R::from_f64(DAY_BUCKET_S) && moves < DAY_BUCKETS {
-            self.in_hour_s -= R::from_f64(DAY_BUCKET_S);
-            self.hour = (self.hour + 1) % DAY_BUCKETS;
-            if let Some(b) = self.hours_l.get_mut(self.hour) {
-                *b = R::ZERO;
-            }
-            moves += 1;
-        }
-        self.in_hour_s = self.in_hour_s.min(R::from_f64(DAY_BUCKET_S));
+        self.hour.advance(dt, HOUR_BUCKET_S);
+        self.day.advance(dt, DAY_BUCKET_S);
         if litres.is_finite() && litres > R::ZERO {
-            if let Some(b) = self.five_minutes_l.get_mut(self.five) {
-                *b += litres;
-            }
-            if let Some(b) = self.hours_l.get_mut(self.hour) {
-                *b += litres;
-            }
+            self.hour.add(litres);
+            self.day.add(litres);
             self.total_l += litres;
         }
     }
 
     /// Delivered in the last hour (55–60 minutes of history), L.
     pub fn last_hour_l(&self) -> R {
-        self.five_minutes_l.iter().fold(R::ZERO, |a, b| a + *b)
+        self.hour.total_l()
     }
 
     /// Delivered in the last day (23–24 hours of history), L.
     pub fn last_day_l(&self) -> R {
-        self.hours_l.iter().fold(R::ZERO, |a, b| a + *b)
+        self.day.total_l()
     }
 
     /// Delivered since start, L.
