@@ -172,3 +172,92 @@ fn plans_beyond_the_activity_model_are_refused() {
     let ph = rinse.mix(1200.0, &a, p.reagent_flow_l_per_h).unwrap().solve().unwrap().ph;
     assert!((ph - 2.0).abs() < 1e-6, "{ph}");
 }
+
+/// Reaches `setpoint` with `reagent` into `influent` at `flow` (Davies, at the influent's
+/// temperature) and checks the planned flow really solves to the setpoint.
+fn plan_reaches<R: Real, const N: usize, const M: usize>(
+    influent: &Solution<R, N>,
+    flow_l_per_h: f64,
+    reagent: &Solution<R, M>,
+    setpoint: f64,
+    tol_ph: f64,
+) -> f64 {
+    let request = DoseRequest::new(Ph::new(R::from_f64(setpoint)).unwrap());
+    let p = plan(influent, LitresPerHour::new(R::from_f64(flow_l_per_h)).unwrap(), reagent, &request)
+        .unwrap_or_else(|e| panic!("setpoint {setpoint}: {e:?}"));
+    let mut r = reagent.clone();
+    r.set_temperature(influent.temperature());
+    let mix = influent.mix(R::from_f64(flow_l_per_h), &r, p.reagent_flow_l_per_h).unwrap();
+    let ph = mix.solve().unwrap().ph.to_f64();
+    assert!(
+        (ph - setpoint).abs() <= tol_ph,
+        "setpoint {setpoint}: planned flow {} gives pH {ph}",
+        p.reagent_flow_l_per_h
+    );
+    p.reagent_flow_l_per_h.to_f64()
+}
+
+/// Differential fuzz finding: brine at 96.6 °C, 0.1 L/h, dosed with 0.0106 M HCl toward pH
+/// 2.13. The brine's own ionic strength (0.39 mol/L) makes the dilute acid look unable to get
+/// there, but the mixture that does (about 0.77 L/h of acid) is far less salty. Was refused as
+/// beyond the reagent.
+#[test]
+fn a_reachable_setpoint_in_brine_is_planned() {
+    let mut brine: Solution<f64, 3> = davies(96.6);
+    brine.add_formula("NaCl", 0.39).unwrap();
+    let mut acid: Solution<f64, 1> = davies(96.6);
+    acid.add_formula("HCl", 0.0106).unwrap();
+    let q = plan_reaches(&brine, 0.1, &acid, 2.13, 1e-6);
+    assert!(q > 0.1 && q < 10.0, "{q}");
+}
+
+/// Differential fuzz finding: phosphoric acid at 83.1 °C (pH about 2.0) with 0.01 M HCl, whose
+/// own pH is above the influent's in the Davies model: the acid raises the pH, so a setpoint
+/// below the influent is the wrong direction (was: beyond the reagent, from an ideal-activity
+/// direction test).
+#[test]
+fn direction_is_judged_in_the_influents_activity_model() {
+    let mut acidic: Solution<f64, 3> = davies(83.1);
+    acidic.add_formula("H3PO4", 0.0353).unwrap();
+    let mut acid: Solution<f64, 1> = davies(83.1);
+    acid.add_formula("HCl", 0.01).unwrap();
+    let influent_ph = acidic.solve().unwrap().ph;
+    let own_ph = {
+        let mut a = acid.clone();
+        a.set_temperature(acidic.temperature());
+        a.solve().unwrap().ph
+    };
+    assert!(own_ph > influent_ph, "premise: {own_ph} > {influent_ph}");
+    let request = DoseRequest::new(Ph::new(0.0).unwrap());
+    let r = plan(&acidic, LitresPerHour::new(10.0).unwrap(), &acid, &request);
+    assert!(matches!(r, Err(DoseError::WrongDirection { .. })), "{r:?}");
+}
+
+/// Differential fuzz finding: brine at 0 °C, 0.18 L/h, 0.0103 M NaOH toward pH 12.74, close
+/// to the reagent's own pH: the ionic-strength refinement oscillated (NotConverged) although
+/// about 0.59 L/h reaches the setpoint.
+#[test]
+fn a_setpoint_near_the_reagents_own_ph_converges() {
+    let mut brine: Solution<f64, 3> = davies(0.0);
+    brine.add_formula("NaCl", 0.4).unwrap();
+    let mut caustic: Solution<f64, 1> = davies(0.0);
+    caustic.add_formula("NaOH", 0.0103).unwrap();
+    let q = plan_reaches(&brine, 0.18, &caustic, 12.74, 1e-6);
+    assert!(q > 0.18, "{q}");
+}
+
+/// Differential fuzz finding, f32 only: strong carbonic acid water at 99.6 °C, 5140.5 L/h,
+/// 0.01027 M HCl toward pH 3.226: NotConverged in f32 where f64 plans about 162 L/h.
+#[test]
+fn f32_plan_converges_where_f64_does() {
+    fn case<R: Real>() -> f64 {
+        let mut water: Solution<R, 3> = davies(99.6);
+        water.add_formula("CO2", R::from_f64(0.471)).unwrap();
+        let mut acid: Solution<R, 1> = davies(99.6);
+        acid.add_formula("HCl", R::from_f64(0.01027)).unwrap();
+        plan_reaches(&water, 5140.5, &acid, 3.226, if R::RELATIVE_PRECISION > 1e-10 { 1e-3 } else { 1e-6 })
+    }
+    let q64 = case::<f64>();
+    let q32 = case::<f32>();
+    assert!((q32 - q64).abs() <= 1e-3 * q64, "f32 {q32} vs f64 {q64}");
+}

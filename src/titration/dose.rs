@@ -16,8 +16,12 @@ use crate::chem::{CompositionError, Equilibrium, Solution, SolveError};
 use crate::real::Real;
 use crate::units::{InvalidInput, LitresPerHour, Ph, PhWidth, Quantity};
 
-/// Most ionic-strength rounds of one dose computation.
+/// Most ionic-strength rounds of the fast path of one dose computation.
 pub const MAX_DOSE_ROUNDS: u32 = 12;
+/// Most halvings of the bracketed search that takes over when the fast path cannot conclude.
+pub const MAX_BRACKET_STEPS: u32 = 64;
+/// Most ionic-strength rounds at a fixed pH inside one halving of the bracketed search.
+pub const MAX_FIXED_PH_ROUNDS: u32 = 8;
 /// Setpoint offsets scanned (each side, 0.1 pH apart) when looking for a controllable setpoint.
 pub const SETPOINT_SCAN_STEPS: u32 = 20;
 /// Spacing of that scan, pH.
@@ -141,7 +145,9 @@ pub struct DosePlan<R: Real> {
     pub gain_ph_per_step: Option<R>,
     /// The influent's own pH.
     pub influent_ph: R,
-    /// Ionic-strength rounds used (1 in ideal mode).
+    /// Ionic-strength rounds used: 1 in ideal mode, at most [`MAX_DOSE_ROUNDS`] on the fast
+    /// path; more when the bracketed search decided (rounds of the fast path plus halvings, at
+    /// most [`MAX_DOSE_ROUNDS`] + [`MAX_BRACKET_STEPS`]).
     pub rounds: u32,
     /// How finely the working precision places the mixture's pH at the planned flow, pH
     /// (ε·S/β of the mixture, as [`crate::chem::Equilibrium::resolution_ph`]): the planned flow
@@ -173,7 +179,8 @@ pub enum DoseError {
     },
     /// Even an unlimited dose stops short of the setpoint.
     BeyondReagent {
-        /// The pH an unlimited dose approaches (the reagent's own pH, ideal activities).
+        /// The pH an unlimited dose approaches: the reagent's own pH at the influent's
+        /// temperature, in the influent's activity model.
         limit_ph: f64,
         /// The setpoint.
         setpoint_ph: f64,
@@ -240,6 +247,14 @@ struct Core<R: Real> {
     rounds: u32,
 }
 
+/// Outcome of the fast path of [`Mixing::core`].
+enum Fast<R: Real> {
+    /// A plan, or an error no other method would avoid.
+    Done(Result<Core<R>, DoseError>),
+    /// The fast path could not conclude after `rounds` rounds.
+    Undecided { rounds: u32 },
+}
+
 /// Influent at its flow, reagent (already at the influent's temperature), and the influent's own
 /// equilibrium: everything the closed form and the checks share.
 struct Mixing<'a, R: Real, const N: usize, const M: usize> {
@@ -250,10 +265,24 @@ struct Mixing<'a, R: Real, const N: usize, const M: usize> {
 }
 
 impl<R: Real, const N: usize, const M: usize> Mixing<'_, R, N, M> {
-    /// The closed-form flow for setpoint `x`, refined for activity in at most
-    /// [`MAX_DOSE_ROUNDS`] rounds.
+    /// The flow for setpoint `x`: the closed form refined for activity by a fixed point on the
+    /// mixture's ionic strength (at most [`MAX_DOSE_ROUNDS`] rounds, the usual case); when that
+    /// cannot conclude — in Davies mode the closed form at a guessed ionic strength can point the
+    /// wrong way, and near the reagent's own pH the fixed point can oscillate — the bracketed
+    /// search [`Self::bracketed`] decides, which cannot be misled by either.
     fn core(&self, x: R) -> Result<Core<R>, DoseError> {
+        match self.fixed_point(x) {
+            Fast::Done(result) => result,
+            Fast::Undecided { rounds } => self.bracketed(x, rounds),
+        }
+    }
+
+    /// The fast path. Undecided when the closed form's signs disagree at the current ionic
+    /// strength, when it settles beyond the activity model, or when the rounds run out; an
+    /// error only for a composition error.
+    fn fixed_point(&self, x: R) -> Fast<R> {
         let (influent, q_in, reagent) = (self.influent, self.influent_flow_l_per_h, self.reagent);
+        let davies = influent.activity() == Activity::Davies;
         let mut ionic = self.influent_eq.ionic_strength_mol_per_l;
         for round in 1..=MAX_DOSE_ROUNDS {
             let af = influent.activity_factor(ionic);
@@ -264,48 +293,160 @@ impl<R: Real, const N: usize, const M: usize> Mixing<'_, R, N, M> {
             } else if (gi > R::ZERO) != (gr > R::ZERO) && gr != R::ZERO {
                 -q_in * gi / gr
             } else {
-                return Err(self.unreachable_reason(x));
+                return Fast::Undecided { rounds: round };
             };
-            let mixture = influent.mix(q_in, reagent, flow).map_err(DoseError::Composition)?;
+            let mixture = match influent.mix(q_in, reagent, flow) {
+                Ok(m) => m,
+                Err(e) => return Fast::Done(Err(DoseError::Composition(e))),
+            };
             let e = mixture.evaluate(x, af);
-            let davies = influent.activity() == Activity::Davies;
             let settled = !davies || (e.ionic_strength - ionic).abs() <= R::IONIC_STRENGTH_TOLERANCE * e.ionic_strength;
-            let beyond = davies && e.ionic_strength.to_f64() > DAVIES_MAX_IONIC_STRENGTH;
-            if beyond && (settled || ionic.to_f64() > DAVIES_MAX_IONIC_STRENGTH) {
-                // The mixture at the setpoint lies beyond the activity model (two rounds in a
-                // row, or settled there): the solver would refuse the plan's own mixture.
-                return Err(DoseError::BeyondActivityModel {
-                    ionic_strength_mol_per_l: e.ionic_strength.to_f64(),
-                    setpoint_ph: x.to_f64(),
-                });
-            }
             if settled {
+                if davies && e.ionic_strength.to_f64() > DAVIES_MAX_IONIC_STRENGTH {
+                    // Settled beyond the activity model: let the bracketed search judge.
+                    return Fast::Undecided { rounds: round };
+                }
                 let gain = if e.beta > R::ZERO { gr / ((q_in + flow) * e.beta) } else { R::ZERO };
                 let resolution = mixture.resolution(x, af, e.beta);
-                return Ok(Core { flow, beta: e.beta, ionic: e.ionic_strength, resolution, gain, rounds: round });
+                return Fast::Done(Ok(Core {
+                    flow,
+                    beta: e.beta,
+                    ionic: e.ionic_strength,
+                    resolution,
+                    gain,
+                    rounds: round,
+                }));
             }
             ionic = e.ionic_strength;
         }
-        Err(DoseError::NotConverged)
+        Fast::Undecided { rounds: MAX_DOSE_ROUNDS }
     }
 
-    /// Which way is the setpoint unreachable? Compares the reagent's own pull at the influent's
-    /// pH; the limit of an unlimited dose is the reagent's own pH in the influent's activity
-    /// model (the mixture's model). A reagent too concentrated for the Davies model gives
+    /// Charge excess (eq/L) and ionic strength (mol/L) at pH `x` of the mixture whose reagent
+    /// volume fraction is `t` (0 = influent, 1 = reagent), with activity coefficients from its
+    /// own ionic strength at `x` (clamped to the Davies range for the coefficients only). At a
+    /// fixed pH every term is linear in the totals, so the mixture's excess and ionic strength
+    /// are `(1 − t)·influent + t·reagent`. A fixed point of at most [`MAX_FIXED_PH_ROUNDS`]
+    /// rounds of two evaluations (one in ideal mode), starting from `ionic`.
+    fn consistent_at(&self, x: R, t: R, mut ionic: R) -> (R, R) {
+        let max = R::from_f64(DAVIES_MAX_IONIC_STRENGTH);
+        let mut excess = R::ZERO;
+        for _ in 0..MAX_FIXED_PH_ROUNDS {
+            let af = self.influent.activity_factor(ionic.max(R::ZERO).min(max));
+            let (ei, er) = (self.influent.evaluate(x, af), self.reagent.evaluate(x, af));
+            let next = (R::ONE - t) * ei.ionic_strength + t * er.ionic_strength;
+            excess = (R::ONE - t) * ei.excess + t * er.excess;
+            let settled = af == R::ZERO || (next - ionic).abs() <= R::IONIC_STRENGTH_TOLERANCE * next;
+            ionic = next;
+            if settled {
+                break;
+            }
+        }
+        (excess, ionic)
+    }
+
+    /// The robust path: bisection on the reagent's volume fraction `t` in the mixture. The
+    /// mixture's self-consistent charge excess at the setpoint is the influent's at `t = 0` and
+    /// the reagent's at `t = 1`; a sign change between them is a mixture at the setpoint (the
+    /// excess is continuous in `t`), and no sign change means the setpoint is out of reach
+    /// (the reason follows from where the influent's and the reagent's own pH lie). The flow is
+    /// then the closed form at the bracket's ionic strength. At most [`MAX_BRACKET_STEPS`]
+    /// halvings, each one [`Self::consistent_at`], plus one reagent solve to name an
+    /// unreachable setpoint's limit.
+    /// `fast_rounds` (the fast path's rounds) count into the plan's `rounds`.
+    fn bracketed(&self, x: R, fast_rounds: u32) -> Result<Core<R>, DoseError> {
+        let (influent, q_in, reagent) = (self.influent, self.influent_flow_l_per_h, self.reagent);
+        let (e0, i0) = self.consistent_at(x, R::ZERO, self.influent_eq.ionic_strength_mol_per_l);
+        if e0 == R::ZERO {
+            let af = influent.activity_factor(i0);
+            let e = influent.evaluate(x, af);
+            return Ok(Core {
+                flow: R::ZERO,
+                beta: e.beta,
+                ionic: e.ionic_strength,
+                resolution: influent.resolution(x, af, e.beta),
+                gain: R::ZERO,
+                rounds: fast_rounds,
+            });
+        }
+        let (e1, _) = self.consistent_at(x, R::ONE, i0);
+        if (e0 > R::ZERO) == (e1 > R::ZERO) || e1 == R::ZERO {
+            return Err(self.unreachable_reason(x));
+        }
+        // Invariant: the excess has e0's sign at `lo` and the other sign at `hi`.
+        let (mut lo, mut hi) = (R::ZERO, R::ONE);
+        let mut ionic = i0;
+        let mut steps = 0_u32;
+        while steps < MAX_BRACKET_STEPS {
+            steps += 1;
+            let mid = R::from_f64(0.5) * (lo + hi);
+            if mid <= lo || mid >= hi {
+                break;
+            }
+            let (e, i) = self.consistent_at(x, mid, ionic);
+            ionic = i;
+            if e == R::ZERO {
+                (lo, hi) = (mid, mid);
+                break;
+            }
+            if (e > R::ZERO) == (e0 > R::ZERO) {
+                lo = mid;
+            } else {
+                hi = mid;
+            }
+            if hi - lo <= R::from_f64(R::RELATIVE_PRECISION) * hi {
+                break;
+            }
+        }
+        let t = R::from_f64(0.5) * (lo + hi);
+        let (_, ionic) = self.consistent_at(x, t, ionic);
+        if influent.activity() == Activity::Davies && ionic.to_f64() > DAVIES_MAX_IONIC_STRENGTH {
+            return Err(DoseError::BeyondActivityModel {
+                ionic_strength_mol_per_l: ionic.to_f64(),
+                setpoint_ph: x.to_f64(),
+            });
+        }
+        let af = influent.activity_factor(ionic);
+        let gi = influent.evaluate(x, af).excess;
+        let gr = reagent.evaluate(x, af).excess;
+        // The closed form at the converged activity coefficients is exact there; the bracket's
+        // own fraction is the fallback when rounding leaves the two excesses of equal sign.
+        let flow =
+            if (gi > R::ZERO) != (gr > R::ZERO) && gr != R::ZERO { -q_in * gi / gr } else { q_in * t / (R::ONE - t) };
+        let mixture = influent.mix(q_in, reagent, flow).map_err(DoseError::Composition)?;
+        let e = mixture.evaluate(x, af);
+        let gain = if e.beta > R::ZERO { gr / ((q_in + flow) * e.beta) } else { R::ZERO };
+        let resolution = mixture.resolution(x, af, e.beta);
+        Ok(Core { flow, beta: e.beta, ionic: e.ionic_strength, resolution, gain, rounds: fast_rounds + steps })
+    }
+
+    /// Why is the setpoint out of reach? Called when neither the influent nor the reagent
+    /// (each at its own ionic strength at the setpoint) is on the far side of it. The reagent's
+    /// own pH in the influent's activity model is the limit an unlimited dose approaches: if it
+    /// lies between the influent's pH and the setpoint, the setpoint is beyond the reagent;
+    /// otherwise the reagent pulls the wrong way. A reagent too concentrated for the Davies
+    /// model has no such pH: its pull at the influent's pH (in the influent's activity
+    /// coefficients, the first drop's view) gives the direction, and a setpoint on its side is
     /// [`DoseError::BeyondActivityModel`].
     fn unreachable_reason(&self, x: R) -> DoseError {
         let setpoint_ph = x.to_f64();
         let influent_ph = self.influent_eq.ph;
-        let reagent_pushes_up = self.reagent.evaluate(influent_ph, R::ZERO).excess > R::ZERO;
-        if reagent_pushes_up != (x > influent_ph) {
-            return DoseError::WrongDirection { influent_ph: influent_ph.to_f64(), setpoint_ph };
-        }
+        let wrong = DoseError::WrongDirection { influent_ph: influent_ph.to_f64(), setpoint_ph };
         let mut own = self.reagent.clone();
         own.set_activity(self.influent.activity());
         match own.solve() {
-            Ok(eq) => DoseError::BeyondReagent { limit_ph: eq.ph.to_f64(), setpoint_ph },
+            Ok(eq) if (eq.ph - x).abs() < (influent_ph - x).abs() => {
+                DoseError::BeyondReagent { limit_ph: eq.ph.to_f64(), setpoint_ph }
+            }
+            Ok(_) => wrong,
             Err(SolveError::IonicStrengthTooHigh { mol_per_l }) => {
-                DoseError::BeyondActivityModel { ionic_strength_mol_per_l: mol_per_l, setpoint_ph }
+                let af = self.influent.activity_factor(self.influent_eq.ionic_strength_mol_per_l);
+                let pushes_up = self.reagent.evaluate(influent_ph, af).excess > R::ZERO;
+                if pushes_up == (x > influent_ph) {
+                    DoseError::BeyondActivityModel { ionic_strength_mol_per_l: mol_per_l, setpoint_ph }
+                } else {
+                    wrong
+                }
             }
             Err(e) => DoseError::Solve(e),
         }
@@ -376,9 +517,12 @@ pub const MAX_DILUTION: f64 = 1e6;
 /// setpoint, with the process gain and the pump/band checks.
 ///
 /// The reagent is taken at the influent's temperature (reagent flows are small). The mixture
-/// must fit in capacity `N`: give the influent room for the reagent's systems. Worst case:
-/// [`MAX_DOSE_ROUNDS`] × (two charge-balance evaluations and one mix) plus one influent solve,
-/// and, only when the steepness check fails, up to 2·[`SETPOINT_SCAN_STEPS`] more such plans.
+/// must fit in capacity `N`: give the influent room for the reagent's systems. Cost: one
+/// influent solve plus [`MAX_DOSE_ROUNDS`] × (two charge-balance evaluations and one mix) on
+/// the fast path, which decides almost every plan; when it cannot (a setpoint near the reagent's
+/// own pH in brine, or an out-of-reach setpoint), a bracketed search adds at most
+/// ([`MAX_BRACKET_STEPS`] + 3) × [`MAX_FIXED_PH_ROUNDS`] × 2 evaluations and one reagent solve.
+/// Only when the steepness check fails: up to 2·[`SETPOINT_SCAN_STEPS`] more such plans.
 pub fn plan<R: Real, const N: usize, const M: usize>(
     influent: &Solution<R, N>,
     influent_flow: LitresPerHour<R>,
