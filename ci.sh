@@ -82,7 +82,7 @@ do_bench() {
 
 do_fuzz() {
     step "fuzz smoke run"
-    bash fuzz/smoke.sh "${FUZZ_SECONDS:-20}"
+    bash fuzz/smoke.sh "${FUZZ_SECONDS:-120}"
 }
 
 do_test() {

@@ -47,7 +47,7 @@ fn main() {
     }
     println!(
         "\nBounds per inner solve: f64 bisection {} / max {}; f32 bisection {} / max {}. Davies counts sum \
-         the ionic-strength rounds (+1 for the initial ionic-strength evaluation of a cold start).\n",
+         the ionic-strength rounds (+1 for the first ionic-strength evaluation, spent by every start).\n",
         bisection_iterations::<f64>(),
         max_ph_iterations::<f64>(),
         bisection_iterations::<f32>(),

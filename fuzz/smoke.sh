@@ -5,8 +5,9 @@
 #
 # Needs a nightly toolchain (FUZZ_TOOLCHAIN, default "nightly"); installs cargo-fuzz with
 # `cargo install cargo-fuzz --locked` when it is missing (about 40 s on a 2-core machine).
-# The corpus (fuzz/corpus/<target>/) is not committed: when a target's corpus is empty a few
-# seed inputs are written first. Exits non-zero on any crash, panic, timeout or OOM; the
+# Each target starts from its committed corpus (fuzz/corpus/<target>/, minimised with
+# `cargo fuzz cmin`); a target without one gets a few seed inputs first. New inputs the run
+# finds are left uncommitted. Exits non-zero on any crash, panic, timeout or OOM; the
 # reproducer is left in fuzz/artifacts/<target>/.
 set -euo pipefail
 

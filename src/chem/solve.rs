@@ -286,8 +286,8 @@ impl<R: Real, const N: usize> Solution<R, N> {
     }
 
     /// Solves for the pH with explicit options. Never panics; at most
-    /// [`MAX_ACTIVITY_ITERATIONS`] × [`max_ph_iterations`] counted iterations (+1 for the initial
-    /// ionic-strength evaluation of a cold Davies start), plus two uncounted evaluations at the
+    /// [`MAX_ACTIVITY_ITERATIONS`] × [`max_ph_iterations`] counted iterations (+1 in Davies mode:
+    /// every start, cold or warm, spends one evaluation on the first ionic strength), plus two uncounted evaluations at the
     /// ends of the search range when a round converges on its edge (the no-root check).
     pub fn solve_with(&self, options: SolverOptions<R>) -> Result<Equilibrium<R>, SolveError> {
         self.check_finite()?;

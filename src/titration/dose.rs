@@ -22,6 +22,11 @@ pub const MAX_DOSE_ROUNDS: u32 = 12;
 pub const MAX_BRACKET_STEPS: u32 = 64;
 /// Most ionic-strength rounds at a fixed pH inside one halving of the bracketed search.
 pub const MAX_FIXED_PH_ROUNDS: u32 = 8;
+/// Flow ratios (reagent to influent) the bracketed search scans for the first sign change:
+/// quarter decades from 10^[`SCAN_LOWEST_LOG10_RATIO`] to 1e9.
+pub const SCAN_POINTS: u32 = 73;
+/// log10 of the smallest reagent-to-influent flow ratio scanned.
+pub const SCAN_LOWEST_LOG10_RATIO: f64 = -9.0;
 /// Setpoint offsets scanned (each side, 0.1 pH apart) when looking for a controllable setpoint.
 pub const SETPOINT_SCAN_STEPS: u32 = 20;
 /// Spacing of that scan, pH.
@@ -201,8 +206,6 @@ pub enum DoseError {
     Composition(CompositionError),
     /// Solving the influent or the reagent failed.
     Solve(SolveError),
-    /// The ionic-strength refinement did not settle in [`MAX_DOSE_ROUNDS`].
-    NotConverged,
 }
 
 impl core::fmt::Display for DoseError {
@@ -224,7 +227,6 @@ impl core::fmt::Display for DoseError {
             Self::Input(e) => core::fmt::Display::fmt(e, f),
             Self::Composition(e) => core::fmt::Display::fmt(e, f),
             Self::Solve(e) => core::fmt::Display::fmt(e, f),
-            Self::NotConverged => f.write_str("dose refinement for activity did not converge"),
         }
     }
 }
@@ -345,14 +347,16 @@ impl<R: Real, const N: usize, const M: usize> Mixing<'_, R, N, M> {
         (excess, ionic)
     }
 
-    /// The robust path: bisection on the reagent's volume fraction `t` in the mixture. The
-    /// mixture's self-consistent charge excess at the setpoint is the influent's at `t = 0` and
-    /// the reagent's at `t = 1`; a sign change between them is a mixture at the setpoint (the
-    /// excess is continuous in `t`), and no sign change means the setpoint is out of reach
-    /// (the reason follows from where the influent's and the reagent's own pH lie). The flow is
-    /// then the closed form at the bracket's ionic strength. At most [`MAX_BRACKET_STEPS`]
-    /// halvings, each one [`Self::consistent_at`], plus one reagent solve to name an
-    /// unreachable setpoint's limit.
+    /// The robust path: a scan, then bisection, on the reagent's volume fraction `t` in the
+    /// mixture. The mixture's self-consistent charge excess at the setpoint is the influent's at
+    /// `t = 0` and the reagent's at `t = 1`, and continuous between; its first sign change along
+    /// [`SCAN_POINTS`] flow ratios (quarter decades from 1e-9 to 1e9 times the influent flow,
+    /// then the pure reagent) brackets the smallest dose at the setpoint, which bisection then
+    /// narrows. No sign change means the setpoint is out of reach (the reason follows from where
+    /// the influent's and the reagent's own pH lie). The flow is the closed form at the
+    /// bracket's ionic strength. At most [`SCAN_POINTS`] + 1 + [`MAX_BRACKET_STEPS`] + 1 calls
+    /// of [`Self::consistent_at`], plus one reagent solve to name an unreachable setpoint's
+    /// limit.
     /// `fast_rounds` (the fast path's rounds) count into the plan's `rounds`.
     fn bracketed(&self, x: R, fast_rounds: u32) -> Result<Core<R>, DoseError> {
         let (influent, q_in, reagent) = (self.influent, self.influent_flow_l_per_h, self.reagent);
@@ -369,13 +373,37 @@ impl<R: Real, const N: usize, const M: usize> Mixing<'_, R, N, M> {
                 rounds: fast_rounds,
             });
         }
-        let (e1, _) = self.consistent_at(x, R::ONE, i0);
-        if (e0 > R::ZERO) == (e1 > R::ZERO) || e1 == R::ZERO {
-            return Err(self.unreachable_reason(x));
-        }
-        // Invariant: the excess has e0's sign at `lo` and the other sign at `hi`.
-        let (mut lo, mut hi) = (R::ZERO, R::ONE);
+        // The first sign change along a scan of the reagent-to-influent flow ratio, so that the
+        // smallest dose reaching the setpoint is found: with activity coefficients the mixture's
+        // pH need not be monotonic in the dose (diluting a salty buffer moves its pH before the
+        // reagent takes over), and a setpoint can be crossed twice.
+        let positive0 = e0 > R::ZERO;
+        let mut lo = R::ZERO;
+        let mut hi = None;
         let mut ionic = i0;
+        for k in 0..SCAN_POINTS {
+            let ratio = R::from_f64(libm::pow(10.0, SCAN_LOWEST_LOG10_RATIO + 0.25 * f64::from(k)));
+            let t = ratio / (R::ONE + ratio);
+            let (e, i) = self.consistent_at(x, t, ionic);
+            ionic = i;
+            if e == R::ZERO || (e > R::ZERO) != positive0 {
+                hi = Some(t);
+                break;
+            }
+            lo = t;
+        }
+        let hi = match hi {
+            Some(t) => t,
+            None => {
+                let (e1, _) = self.consistent_at(x, R::ONE, ionic);
+                if (e1 > R::ZERO) == positive0 || e1 == R::ZERO {
+                    return Err(self.unreachable_reason(x));
+                }
+                R::ONE
+            }
+        };
+        // Invariant: the excess has e0's sign at `lo` and the other sign (or zero) at `hi`.
+        let mut hi = hi;
         let mut steps = 0_u32;
         while steps < MAX_BRACKET_STEPS {
             steps += 1;
@@ -389,7 +417,7 @@ impl<R: Real, const N: usize, const M: usize> Mixing<'_, R, N, M> {
                 (lo, hi) = (mid, mid);
                 break;
             }
-            if (e > R::ZERO) == (e0 > R::ZERO) {
+            if (e > R::ZERO) == positive0 {
                 lo = mid;
             } else {
                 hi = mid;
@@ -425,9 +453,9 @@ impl<R: Real, const N: usize, const M: usize> Mixing<'_, R, N, M> {
     /// own pH in the influent's activity model is the limit an unlimited dose approaches: if it
     /// lies between the influent's pH and the setpoint, the setpoint is beyond the reagent;
     /// otherwise the reagent pulls the wrong way. A reagent too concentrated for the Davies
-    /// model has no such pH: its pull at the influent's pH (in the influent's activity
-    /// coefficients, the first drop's view) gives the direction, and a setpoint on its side is
-    /// [`DoseError::BeyondActivityModel`].
+    /// model, or whose pH lies beyond the search range, has no such pH: its pull at the
+    /// influent's pH (in the influent's activity coefficients, the first drop's view) gives the
+    /// direction, and a setpoint on its side is [`DoseError::BeyondActivityModel`].
     fn unreachable_reason(&self, x: R) -> DoseError {
         let setpoint_ph = x.to_f64();
         let influent_ph = self.influent_eq.ph;
@@ -439,16 +467,29 @@ impl<R: Real, const N: usize, const M: usize> Mixing<'_, R, N, M> {
                 DoseError::BeyondReagent { limit_ph: eq.ph.to_f64(), setpoint_ph }
             }
             Ok(_) => wrong,
-            Err(SolveError::IonicStrengthTooHigh { mol_per_l }) => {
+            Err(e) => {
+                // No own pH in the model: too concentrated for Davies, or beyond the pH search
+                // range (a concentrated strong acid or base). The first drop's pull decides the
+                // direction; a setpoint on the reagent's side that the bracket could not reach
+                // lies beyond the activity model.
                 let af = self.influent.activity_factor(self.influent_eq.ionic_strength_mol_per_l);
                 let pushes_up = self.reagent.evaluate(influent_ph, af).excess > R::ZERO;
-                if pushes_up == (x > influent_ph) {
-                    DoseError::BeyondActivityModel { ionic_strength_mol_per_l: mol_per_l, setpoint_ph }
-                } else {
-                    wrong
+                if pushes_up != (x > influent_ph) {
+                    return wrong;
+                }
+                match e {
+                    SolveError::IonicStrengthTooHigh { mol_per_l } => {
+                        DoseError::BeyondActivityModel { ionic_strength_mol_per_l: mol_per_l, setpoint_ph }
+                    }
+                    SolveError::NoRoot { .. } if self.influent.activity() == Activity::Davies => {
+                        DoseError::BeyondActivityModel {
+                            ionic_strength_mol_per_l: own.strong_ionic_strength_mol_per_l().to_f64(),
+                            setpoint_ph,
+                        }
+                    }
+                    other => DoseError::Solve(other),
                 }
             }
-            Err(e) => DoseError::Solve(e),
         }
     }
 
@@ -521,7 +562,8 @@ pub const MAX_DILUTION: f64 = 1e6;
 /// influent solve plus [`MAX_DOSE_ROUNDS`] × (two charge-balance evaluations and one mix) on
 /// the fast path, which decides almost every plan; when it cannot (a setpoint near the reagent's
 /// own pH in brine, or an out-of-reach setpoint), a bracketed search adds at most
-/// ([`MAX_BRACKET_STEPS`] + 3) × [`MAX_FIXED_PH_ROUNDS`] × 2 evaluations and one reagent solve.
+/// ([`SCAN_POINTS`] + [`MAX_BRACKET_STEPS`] + 3) × [`MAX_FIXED_PH_ROUNDS`] × 2 evaluations (2,240)
+/// and one reagent solve.
 /// Only when the steepness check fails: up to 2·[`SETPOINT_SCAN_STEPS`] more such plans.
 pub fn plan<R: Real, const N: usize, const M: usize>(
     influent: &Solution<R, N>,
