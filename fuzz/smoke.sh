@@ -1,7 +1,7 @@
 #!/usr/bin/env bash
 # Short cargo-fuzz run of every fuzz target (CI: `./ci.sh fuzz`).
 #
-#   bash fuzz/smoke.sh [SECONDS]     # SECONDS per target, default 30
+#   bash fuzz/smoke.sh [SECONDS [TARGET…]]   # SECONDS (≥ 1) per target, default 30; all targets
 #
 # Needs a nightly toolchain (FUZZ_TOOLCHAIN, default "nightly"); installs cargo-fuzz with
 # `cargo install cargo-fuzz --locked` when it is missing (about 40 s on a 2-core machine).
@@ -12,10 +12,12 @@
 set -euo pipefail
 
 seconds="${1:-30}"
+shift || true
 toolchain="${FUZZ_TOOLCHAIN:-nightly}"
 case "$seconds" in
-    '' | *[!0-9]*)
-        echo "usage: $0 [SECONDS]" >&2
+    '' | *[!0-9]* | 0)
+        # 0 would mean "no time limit" to libFuzzer.
+        echo "usage: $0 [SECONDS (>= 1) [TARGET...]]" >&2
         exit 2
         ;;
 esac
@@ -64,7 +66,11 @@ seed_solve_composition() {
          00 80 04 00 00 00 04 02 00 80 00 00 00 00 04 00 00 00 04 ff 7f 03 04 00 00 00 04 00 00 00"
 }
 
-for target in $(cargo +"$toolchain" fuzz list); do
+targets=("$@")
+if [ "${#targets[@]}" -eq 0 ]; then
+    mapfile -t targets < <(cargo +"$toolchain" fuzz list)
+fi
+for target in "${targets[@]}"; do
     if declare -F "seed_$target" >/dev/null; then
         "seed_$target"
     fi

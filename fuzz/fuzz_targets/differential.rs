@@ -179,7 +179,9 @@ fn check(case: &Case) {
             let tol = 1e-8 + 4.0 * (cold.resolution_ph + warm.resolution_ph);
             assert!((cold.ph - warm.ph).abs() <= tol, "warm {} vs cold {} (tol {tol:e})", warm.ph, cold.ph);
         }
-        (Err(a), Err(b)) => assert!(allowed_solve_error(activity, &a) && allowed_solve_error(activity, &b), "{a:?} {b:?}"),
+        (Err(a), Err(b)) => {
+            assert!(allowed_solve_error(activity, &a) && allowed_solve_error(activity, &b), "{a:?} {b:?}")
+        }
         (cold, warm) => panic!("cold {cold:?} vs warm {warm:?}"),
     }
 
@@ -209,7 +211,12 @@ fn check(case: &Case) {
         Ok(p) => {
             let eq = mixture_ph(&inf64, flow, &r_at, p.reagent_flow_l_per_h)
                 .unwrap_or_else(|| panic!("plan {p:?} gives a mixture beyond the activity model"));
-            assert!((eq.ph - x).abs() <= 1e-6, "f64 plan {} L/h gives pH {} for setpoint {x}", p.reagent_flow_l_per_h, eq.ph);
+            assert!(
+                (eq.ph - x).abs() <= 1e-6,
+                "f64 plan {} L/h gives pH {} for setpoint {x}",
+                p.reagent_flow_l_per_h,
+                eq.ph
+            );
         }
         Err(e) => {
             match e {
@@ -229,15 +236,20 @@ fn check(case: &Case) {
                 let here = mixture_ph(&inf64, flow, &r_at, q).map(|eq| (q, eq));
                 if let (Some(a), Some(b)) = (previous, here) {
                     let margin = 1e-6 + a.1.resolution_ph + b.1.resolution_ph;
-                    let straddle = (a.1.ph < x - margin && b.1.ph > x + margin) || (a.1.ph > x + margin && b.1.ph < x - margin);
+                    let straddle =
+                        (a.1.ph < x - margin && b.1.ph > x + margin) || (a.1.ph > x + margin && b.1.ph < x - margin);
                     if straddle {
                         // A mixture between them is at the setpoint. Refusing is right only if
                         // the activity model cannot hold it: bisect on the flow for it.
                         let found = bisect_for_setpoint(&inf64, flow, &r_at, x, a, b);
                         assert!(
-                            !(found.is_some() || matches!(e, DoseError::WrongDirection { .. } | DoseError::BeyondReagent { .. })),
+                            !(found.is_some()
+                                || matches!(e, DoseError::WrongDirection { .. } | DoseError::BeyondReagent { .. })),
                             "refused ({e:?}) but {found:?} L/h reaches the setpoint (pH {} at {} L/h, pH {} at {} L/h)",
-                            a.1.ph, a.0, b.1.ph, b.0
+                            a.1.ph,
+                            a.0,
+                            b.1.ph,
+                            b.0
                         );
                     }
                 }
@@ -254,11 +266,21 @@ fn check(case: &Case) {
             if let Some(eq) = mixture_ph(&inf64, flow, &r_at, f64::from(p.reagent_flow_l_per_h)) {
                 let bound = (8.0 * f64::from(p.resolution_ph)).max(1e-4);
                 let miss = (eq.ph - x).abs();
-                assert!(miss <= bound, "f32 plan {} L/h gives pH {} for setpoint {x} (resolution {})", p.reagent_flow_l_per_h, eq.ph, p.resolution_ph);
+                assert!(
+                    miss <= bound,
+                    "f32 plan {} L/h gives pH {} for setpoint {x} (resolution {})",
+                    p.reagent_flow_l_per_h,
+                    eq.ph,
+                    p.resolution_ph
+                );
             }
         }
         Err(DoseError::Solve(e)) => assert!(allowed_solve_error(activity, &e), "f32 plan: {e:?}"),
-        Err(e @ (DoseError::WrongDirection { .. } | DoseError::BeyondReagent { .. } | DoseError::BeyondActivityModel { .. })) => {
+        Err(
+            e @ (DoseError::WrongDirection { .. }
+            | DoseError::BeyondReagent { .. }
+            | DoseError::BeyondActivityModel { .. }),
+        ) => {
             if let Ok(p) = &p64 {
                 // f32 may refuse only where f64 sits at a boundary it cannot resolve: the setpoint
                 // within f32's reach of the influent's or the reagent's pH, or the mixture at the
