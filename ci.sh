@@ -92,6 +92,8 @@ do_test() {
         step "tests phdose --no-default-features features=[$f]"
         cargo test -p phdose --no-default-features --features "$f"
     done
+    step "tests phdose-sim (simulator; release: hours of simulated plant)"
+    cargo test -p phdose-sim --release
     step "tests phdose-host (CLI)"
     cargo test -p phdose-host
 }

@@ -22,7 +22,7 @@ use crate::run::{Loop, RunError};
 use crate::scenario::Scenario;
 
 /// The identified model and the resulting PI settings.
-#[derive(Clone, Copy, Debug, PartialEq)]
+#[derive(Clone, Copy, Debug, PartialEq, serde::Serialize)]
 pub struct Tuning {
     /// Process gain, pH per L/h of reagent.
     pub process_gain_ph_per_l_per_h: f64,

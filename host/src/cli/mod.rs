@@ -16,6 +16,7 @@ mod pack;
 mod plan;
 mod reagent;
 mod salt;
+mod simulate;
 mod speciate;
 mod substances;
 mod value;
@@ -96,6 +97,7 @@ enum Command {
     Fit(fit::Args),
     Pack(pack::Args),
     Check(check::Args),
+    Simulate(simulate::Args),
     /// print a shell completion script for phdose
     #[command(
         after_help = "Install (bash): phdose completions bash > ~/.local/share/bash-completion/completions/phdose\n\
@@ -218,6 +220,7 @@ pub fn run(argv: &[OsString], stdin: &mut dyn Read) -> Outcome {
         Command::Fit(a) => fit::run(a, stdin).map(Reply::from),
         Command::Pack(a) => pack::run(a),
         Command::Check(a) => check::run(a),
+        Command::Simulate(a) => simulate::run(a),
         Command::Completions { shell } => Ok(completions(shell).into()),
     };
     match result {

@@ -176,18 +176,30 @@ fn draw_panel(area: &Area<'_>, panel: &Panel, x: std::ops::Range<f64>, x_label: 
     for s in &panel.series {
         let points = s.points.iter().copied().filter(finite);
         let color = s.color;
+        // A series with an empty name gets no legend entry (the second line of a band).
+        let named = !s.name.is_empty();
         match s.style {
-            Style::Line => chart
-                .draw_series(LineSeries::new(points, color.stroke_width(2)))
-                .map_err(text)?
-                .label(s.name.as_str())
-                .legend(move |(x, y)| PathElement::new([(x, y), (x + 20, y)], color.stroke_width(2))),
-            Style::Points => chart
-                .draw_series(points.map(|p| EmptyElement::at(p) + Rectangle::new([(-3, -3), (3, 3)], color.filled())))
-                .map_err(text)?
-                .label(s.name.as_str())
-                .legend(move |(x, y)| Rectangle::new([(x + 7, y - 3), (x + 13, y + 3)], color.filled())),
-        };
+            Style::Line => {
+                let drawn = chart.draw_series(LineSeries::new(points, color.stroke_width(2))).map_err(text)?;
+                if named {
+                    drawn
+                        .label(s.name.as_str())
+                        .legend(move |(x, y)| PathElement::new([(x, y), (x + 20, y)], color.stroke_width(2)));
+                }
+            }
+            Style::Points => {
+                let drawn = chart
+                    .draw_series(
+                        points.map(|p| EmptyElement::at(p) + Rectangle::new([(-3, -3), (3, 3)], color.filled())),
+                    )
+                    .map_err(text)?;
+                if named {
+                    drawn
+                        .label(s.name.as_str())
+                        .legend(move |(x, y)| Rectangle::new([(x + 7, y - 3), (x + 13, y + 3)], color.filled()));
+                }
+            }
+        }
     }
     for set in panel.marker_sets.iter().filter(|m| !m.markers.is_empty()) {
         let (style, radius) = if set.filled { (set.color.filled(), 6) } else { (set.color.stroke_width(2), 8) };

@@ -7,13 +7,13 @@ use std::fmt;
 use phdose::config::Skid;
 use serde::Deserialize;
 use toml::Spanned;
-use toml::de::{DeTable, DeValue, Deserializer};
+use toml::de::{DeTable, DeValue, Deserializer, ValueDeserializer};
 
 use crate::cli::CliError;
 
 /// Top-level sections of a simulator scenario file that `pack` and `check` ignore: exactly
 /// these, so a mistyped key anywhere else is still an error.
-pub const SCENARIO_SECTIONS: [&str; 3] = ["plant", "disturbances", "run"];
+pub const SCENARIO_SECTIONS: [&str; 4] = ["plant", "disturbances", "run", "sweep"];
 
 /// Why a TOML skid did not parse.
 #[derive(Clone, Debug, PartialEq, Eq)]
@@ -47,14 +47,39 @@ impl fmt::Display for TomlError {
 
 /// Parses a TOML skid.
 pub fn parse(text: &str) -> Result<Skid, TomlError> {
+    let (skid, _) = parse_with_sections(text)?;
+    Ok(skid)
+}
+
+/// The scenario sections of a file, as the parser found them (absent ones are `None`).
+pub struct Sections<'i> {
+    text: &'i str,
+    found: Vec<(&'static str, Spanned<DeValue<'i>>)>,
+}
+
+impl Sections<'_> {
+    /// Deserializes the section `name`; `None` when the file has no such section. An error
+    /// names the line and the key, like the skid's.
+    pub fn get<T: serde::de::DeserializeOwned>(&self, name: &str) -> Result<Option<T>, TomlError> {
+        let Some((_, value)) = self.found.iter().find(|(n, _)| *n == name) else { return Ok(None) };
+        T::deserialize(ValueDeserializer::from(value.clone())).map(Some).map_err(|e| locate(self.text, &e))
+    }
+}
+
+/// Parses a TOML skid and keeps the scenario sections ([`SCENARIO_SECTIONS`]) for the caller.
+pub fn parse_with_sections(text: &str) -> Result<(Skid, Sections<'_>), TomlError> {
     let error = |e: toml::de::Error| locate(text, &e);
     let root = DeTable::parse(text).map_err(error)?;
     let span = root.span();
     let mut table = root.into_inner();
+    let mut found = Vec::new();
     for section in SCENARIO_SECTIONS {
-        table.remove(section);
+        if let Some(value) = table.remove(section) {
+            found.push((section, value));
+        }
     }
-    Skid::deserialize(Deserializer::from(Spanned::new(span, table))).map_err(error)
+    let skid = Skid::deserialize(Deserializer::from(Spanned::new(span, table))).map_err(error)?;
+    Ok((skid, Sections { text, found }))
 }
 
 /// Line, column and key path of a parser error in `text`.
