@@ -129,10 +129,10 @@ fn skid() -> Skid {
         control: ControlSettings {
             // The paper's setpoint (H&S 1994/1997: nominal steady state pH 7.0).
             setpoint_ph: 7.0,
-            // ±0.2 pH: the carbonate buffer at pH 7 (β ≈ 2.3·Wb4·α0·α1 ≈ 2e-4 mol/L per pH,
-            // calculated here) lets one mL/s of base move the pH by ≈ 0.5, so ±0.2 is about
-            // ±0.4 mL/s of base (≈ 2.5 % of q3): tight enough to mean something, wide enough for
-            // a 5 s probe lag and a +50 % buffer step to settle in.
+            // ±0.2 pH: the carbonate buffer at pH 7 (β ≈ 2.3·Wb4·α0·α1 ≈ 1.8e-4 mol/L per pH)
+            // and dWa4/dq3 = (Wa3 − Wa4)/(q1 + q2 + q3) ≈ −8.0e-5 M per mL/s make one mL/s of
+            // base move the pH by ≈ 0.44 (calculated here), so ±0.2 is about ±0.45 mL/s of base
+            // (≈ 3 % of q3): tight enough to mean something, wide enough for a 5 s probe lag.
             band_ph: 0.4,
             // Far outside normal operation: the influent alone is pH ≈ 2.7 and the reagent ≈ 11.5.
             low_limit_ph: 4.0,
@@ -212,10 +212,14 @@ fn skid() -> Skid {
 ///   equivalent only at one base flow (it enters with the base stream, in proportion to q3), so
 ///   it is left out. That changes the steady state: without it the pH-7 base flow is ≈ 1.3 %
 ///   lower (15.34 instead of 15.55 mL/s with the paper's constants; calculated here, not
-///   published) and the tank's carbonate Wb4 ≈ 5.05e-4 instead of 5.28e-4 M.
+///   published) and the tank's carbonate Wb4 ≈ 5.08e-4 instead of 5.28e-4 M.
 /// - The tank overflows: its volume stays 2.90 L (207 cm² × 14.0 cm). The paper's level
 ///   dynamics (an outlet valve, level varying with the flows) are not modelled — our plant has
 ///   no level-dependent outlet.
+/// - The run starts with the tank at the setpoint but the controller's pump at zero (its
+///   first tick doses nothing, then the rate limit ramps it up): in a 2.9 L tank the pH dips by
+///   a few tenths in the first seconds, so the run's largest error is the start, not the
+///   disturbance.
 /// - The plant always runs Davies activities (ionic strength ≈ 3 mM here); the controller's
 ///   model is ideal, as in the paper. The small mismatch is left to the feedback and the
 ///   adaptation.
