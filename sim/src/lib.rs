@@ -8,6 +8,7 @@
 //! integrates the plant in between; [`kpi`] scores the run.
 
 pub mod baseline;
+pub mod benchmark;
 pub mod kpi;
 pub mod plant;
 pub mod run;
