@@ -304,6 +304,44 @@ pub struct Failure {
     pub message: String,
 }
 
+/// One run's headline scores (the full [`Kpis`] are kept for the worst run only).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct RunScores {
+    /// Integrated absolute pH error, pH·s (≥ 0).
+    pub iae_ph_s: f64,
+    /// Fraction of the time within the band, 0–1.
+    pub time_in_band_fraction: f64,
+    /// Largest |true pH − setpoint|, pH (≥ 0).
+    pub max_abs_error_ph: f64,
+    /// Reagent used (caustic + acid), L (≥ 0).
+    pub reagent_l: f64,
+    /// Trips latched during the run (0 when none).
+    pub trips: u32,
+}
+
+impl From<&Kpis> for RunScores {
+    fn from(k: &Kpis) -> Self {
+        Self {
+            iae_ph_s: k.iae_ph_s,
+            time_in_band_fraction: k.time_in_band_fraction,
+            max_abs_error_ph: k.max_abs_error_ph,
+            reagent_l: k.reagent_l,
+            trips: u32::try_from(k.trips.len()).unwrap_or(u32::MAX),
+        }
+    }
+}
+
+/// Both controllers' scores for one seed.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct SeedScores {
+    /// The run's seed.
+    pub seed: u64,
+    /// The configured controller; `None` when its run failed (see [`SweepReport::failures`]).
+    pub configured: Option<RunScores>,
+    /// The baseline; `None` when its run failed.
+    pub baseline: Option<RunScores>,
+}
+
 /// The run in which the configured controller did worst.
 #[derive(Clone, Debug, PartialEq)]
 pub struct WorstRun {
@@ -333,6 +371,8 @@ pub struct SweepReport {
     pub worst: Option<WorstRun>,
     /// Every failed run, in seed order (configured before baseline for the same seed).
     pub failures: Vec<Failure>,
+    /// Every seed's scores, in seed order (`runs` entries).
+    pub by_seed: Vec<SeedScores>,
 }
 
 /// One seed's outcome.
@@ -416,5 +456,13 @@ pub fn sweep(
         baseline: Summary::of(&outcomes.iter().map(|o| &o.baseline).collect::<Vec<_>>()),
         worst: worst.map(|(o, k)| WorstRun { seed: o.seed, configured: k.clone(), baseline: o.baseline.clone() }),
         failures,
+        by_seed: outcomes
+            .iter()
+            .map(|o| SeedScores {
+                seed: o.seed,
+                configured: o.configured.as_ref().ok().map(RunScores::from),
+                baseline: o.baseline.as_ref().ok().map(RunScores::from),
+            })
+            .collect(),
     })
 }

@@ -6,7 +6,7 @@ use std::sync::atomic::{AtomicU32, Ordering};
 
 use phdose_sim::run::{Loop, run};
 use phdose_sim::scenario::{Scenario, plating_rinse};
-use phdose_sim::sweep::{MAX_RUNS, SweepError, SweepReport, Uncertainties, perturb, sweep};
+use phdose_sim::sweep::{MAX_RUNS, Percentiles, SweepError, SweepReport, Uncertainties, perturb, sweep};
 
 /// The built-in scenario, shortened to half an hour so the sweeps stay fast in debug builds.
 fn short() -> Scenario {
@@ -205,6 +205,20 @@ fn the_report_does_not_depend_on_the_thread_count_and_replays_the_worst_run() {
             }
         }
     }
+    // The summaries are of the listed runs.
+    let configured: Vec<_> = one.by_seed.iter().filter_map(|r| r.configured).collect();
+    let baseline: Vec<_> = one.by_seed.iter().filter_map(|r| r.baseline).collect();
+    for (summary, scores) in [(&one.configured, &configured), (&one.baseline, &baseline)] {
+        assert_eq!(summary.completed as usize, scores.len());
+        assert_eq!(summary.runs_with_trip as usize, scores.iter().filter(|r| r.trips > 0).count());
+        assert_eq!(summary.iae_ph_s, Percentiles::of(scores.iter().map(|r| r.iae_ph_s).collect()));
+        assert_eq!(summary.reagent_l, Percentiles::of(scores.iter().map(|r| r.reagent_l).collect()));
+        assert_eq!(
+            summary.time_in_band_fraction,
+            Percentiles::of(scores.iter().map(|r| r.time_in_band_fraction).collect())
+        );
+        assert_eq!(summary.max_abs_error_ph, Percentiles::of(scores.iter().map(|r| r.max_abs_error_ph).collect()));
+    }
     assert_eq!(one.failures.len(), (one.configured.failed + one.baseline.failed) as usize, "{:?}", one.failures);
 
     // The worst run: its seed is in range, its IAE is the highest (P95 cannot exceed it), and it
@@ -214,9 +228,16 @@ fn the_report_does_not_depend_on_the_thread_count_and_replays_the_worst_run() {
     assert!(one.configured.iae_ph_s.unwrap().p95 <= worst.configured.iae_ph_s);
     let replay = run(&perturb(&s, &u, worst.seed).unwrap(), Loop::Configured, None).unwrap();
     assert_eq!(replay.iae_ph_s.to_bits(), worst.configured.iae_ph_s.to_bits());
-    // It is the highest of every completed run, the lowest seed on a tie.
-    for seed in first_seed..first_seed + u64::from(runs) {
-        let Ok(t) = run(&perturb(&s, &u, seed).unwrap(), Loop::Configured, None) else { continue };
+    // Every seed is listed, in order, with the scores a replay gives; the worst run is the
+    // highest of every completed run, the lowest seed on a tie.
+    let seeds: Vec<u64> = one.by_seed.iter().map(|r| r.seed).collect();
+    assert_eq!(seeds, (first_seed..first_seed + u64::from(runs)).collect::<Vec<_>>());
+    for listed in &one.by_seed {
+        let seed = listed.seed;
+        let replayed = run(&perturb(&s, &u, seed).unwrap(), Loop::Configured, None);
+        assert_eq!(replayed.is_ok(), listed.configured.is_some(), "seed {seed}");
+        let Ok(t) = replayed else { continue };
+        assert_eq!(t.iae_ph_s.to_bits(), listed.configured.unwrap().iae_ph_s.to_bits(), "seed {seed}");
         assert!(
             t.iae_ph_s < worst.configured.iae_ph_s || (t.iae_ph_s == worst.configured.iae_ph_s && seed >= worst.seed),
             "seed {seed}: IAE {} vs worst {} (seed {})",
@@ -235,7 +256,6 @@ fn the_report_does_not_depend_on_the_thread_count_and_replays_the_worst_run() {
 
 #[test]
 fn nearest_rank_percentiles() {
-    use phdose_sim::sweep::Percentiles;
     assert_eq!(Percentiles::of(Vec::new()), None);
     let one = Percentiles::of(vec![3.0]).unwrap();
     assert_eq!((one.p5, one.p50, one.p95), (3.0, 3.0, 3.0));
@@ -258,6 +278,7 @@ fn failed_runs_are_reported_not_panicked() {
     assert_eq!((report.baseline.completed, report.baseline.failed), (0, 3));
     assert_eq!(report.configured.iae_ph_s, None);
     assert_eq!(report.worst, None);
+    assert!(report.by_seed.iter().all(|r| r.configured.is_none() && r.baseline.is_none()));
     let seeds: Vec<u64> = report.failures.iter().map(|f| f.seed).collect();
     assert_eq!(seeds, [5, 5, 6, 6, 7, 7]);
     assert!(report.failures.iter().all(|f| f.message.contains("step_s")), "{:?}", report.failures);
