@@ -13,3 +13,4 @@ pub mod kpi;
 pub mod plant;
 pub mod run;
 pub mod scenario;
+pub mod sweep;
