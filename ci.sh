@@ -73,6 +73,7 @@ do_nopanic() {
 do_doc() {
     step "rustdoc"
     RUSTDOCFLAGS="-D warnings" cargo doc -p phdose --no-deps --features defmt
+    RUSTDOCFLAGS="-D warnings" cargo doc -p phdose-sim --no-deps
 }
 
 do_bench() {

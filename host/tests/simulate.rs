@@ -130,3 +130,35 @@ fn bad_scenarios_are_refused_with_the_line_and_key() {
     let e = table_error(&["simulate", path_str(&bad_step)]);
     assert!(e.contains("step_s"), "{e}");
 }
+
+/// `phdose sweep`: percentiles of both loops, the same with one thread or two, and a worst run
+/// that `simulate --seed` replays exactly.
+#[test]
+fn sweep_reports_a_worst_seed_that_simulate_replays() {
+    let sweep = |threads: &str| {
+        let out = std::process::Command::new(env!("CARGO_BIN_EXE_phdose"))
+            .args(["sweep", "--runs", "4", "--first-seed", "11", "--json"])
+            .env("RAYON_NUM_THREADS", threads)
+            .output()
+            .unwrap();
+        assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+        let mut doc: Value = serde_json::from_slice(&out.stdout).unwrap();
+        doc.as_object_mut().unwrap().remove("wall_s");
+        doc
+    };
+    let one = sweep("1");
+    assert_eq!(one, sweep("2"), "the report depends on the thread count");
+    for side in ["controller", "baseline"] {
+        let iae = &one[side]["iae_ph_s"];
+        assert!(num(iae, "p5") <= num(iae, "p50") && num(iae, "p50") <= num(iae, "p95"), "{iae}");
+        assert_eq!(one[side]["completed"], 4);
+    }
+    let worst = one["worst"]["seed"].as_u64().unwrap();
+    assert!((11..15).contains(&worst), "{worst}");
+    let replay = ok_json(&["simulate", "--json", "--seed", &worst.to_string()], "");
+    assert_eq!(replay["controller"]["iae_ph_s"], one["worst"]["controller_iae_ph_s"]);
+    assert_eq!(replay["baseline"]["iae_ph_s"], one["worst"]["baseline_iae_ph_s"]);
+    // A bad run count is a usage error.
+    let r = run(&["sweep", "--runs", "0"], "");
+    assert_eq!(r.code, 2, "{}", r.stdout);
+}

@@ -82,8 +82,8 @@ pub struct Tank {
     balance: Balance,
 }
 
-/// Moles in and out of the tank: the strong charge (eq) and each system's total (mol, in the
-/// order of [`Tank::systems`]).
+/// Moles in and out of the tank: the strong charge (eq) and each system's total (mol, keyed
+/// by the system's catalogue key).
 #[derive(Clone, Debug, Default, PartialEq)]
 pub struct Balance {
     /// Strong-ion charge that entered, eq.

@@ -19,6 +19,7 @@ mod salt;
 mod simulate;
 mod speciate;
 mod substances;
+mod sweep;
 mod value;
 mod volume;
 
@@ -98,6 +99,7 @@ enum Command {
     Pack(pack::Args),
     Check(check::Args),
     Simulate(simulate::Args),
+    Sweep(sweep::Args),
     /// print a shell completion script for phdose
     #[command(
         after_help = "Install (bash): phdose completions bash > ~/.local/share/bash-completion/completions/phdose\n\
@@ -221,6 +223,7 @@ pub fn run(argv: &[OsString], stdin: &mut dyn Read) -> Outcome {
         Command::Pack(a) => pack::run(a),
         Command::Check(a) => check::run(a),
         Command::Simulate(a) => simulate::run(a),
+        Command::Sweep(a) => sweep::run(a),
         Command::Completions { shell } => Ok(completions(shell).into()),
     };
     match result {

@@ -2,6 +2,8 @@
 //! beside a feedback-only baseline tuned by a named rule on the same plant — the main job.
 
 mod output;
+
+pub use output::SIM_CAUTION;
 pub mod scenario_file;
 
 use std::path::PathBuf;
@@ -65,7 +67,8 @@ pub struct Args {
     /// The TOML scenario file [default: the built-in scenario]
     #[arg(value_name = "SCENARIO.toml")]
     pub file: Option<String>,
-    /// Seed of the run's random draws (noise, random slugs) instead of the scenario's
+    /// Replay draw N of the scenario's declared uncertainties (what `phdose sweep` calls run N):
+    /// the plant drawn from seed N, and N as the seed of the noise and random slugs
     #[arg(long, value_name = "N")]
     pub seed: Option<u64>,
     /// Run only the configured controller (no baseline)
@@ -105,6 +108,8 @@ pub struct Simulation {
     pub seed: u64,
     /// The configured controller.
     pub controller: Outcome,
+    /// `true` when the plant is a draw of the declared uncertainties (`--seed`).
+    pub drawn: bool,
     /// The baseline and its tuning (absent with `--no-baseline`).
     pub baseline: Option<(Outcome, Tuning)>,
     /// Wall time of everything (both runs and the bump test), s.
@@ -124,23 +129,33 @@ fn one(scenario: &Scenario, law: Loop, seed: u64) -> Result<Outcome, CliError> {
     Ok(Outcome { trajectory, kpis, wall_s })
 }
 
-/// Runs the simulation the arguments ask for.
+/// Runs the simulation the arguments ask for. The baseline is tuned on `nominal` (commissioning
+/// is done once, on the plant as designed — as `phdose sweep` does), then run on `scenario`.
 pub fn simulate(
     scenario: Scenario,
+    nominal: &Scenario,
     file: Option<String>,
     seed: Option<u64>,
     baseline: bool,
 ) -> Result<Simulation, CliError> {
     let start = Instant::now();
-    let seed = seed.unwrap_or(scenario.run.seed);
-    let controller = one(&scenario, Loop::Configured, seed)?;
+    let run_seed = seed.unwrap_or(scenario.run.seed);
+    let controller = one(&scenario, Loop::Configured, run_seed)?;
     let baseline = if baseline {
-        let tuning = baseline::tune(&scenario).map_err(|e| sim_error(format!("baseline bump test: {e}")))?;
-        Some((one(&scenario, tuning.as_loop(), seed)?, tuning))
+        let tuning = baseline::tune(nominal).map_err(|e| sim_error(format!("baseline bump test: {e}")))?;
+        Some((one(&scenario, tuning.as_loop(), run_seed)?, tuning))
     } else {
         None
     };
-    Ok(Simulation { scenario, file, seed, controller, baseline, wall_s: start.elapsed().as_secs_f64() })
+    Ok(Simulation {
+        scenario,
+        file,
+        seed: run_seed,
+        controller,
+        drawn: seed.is_some(),
+        baseline,
+        wall_s: start.elapsed().as_secs_f64(),
+    })
 }
 
 /// Runs `simulate`.
@@ -149,7 +164,11 @@ pub fn run(args: Args) -> Result<Reply, CliError> {
         return Ok(Reply { stdout: scenario_file::TEMPLATE.to_owned(), code: 0 });
     }
     let loaded = scenario_file::load(args.file.as_deref())?;
-    let sim = simulate(loaded.scenario, loaded.file, args.seed, !args.no_baseline)?;
+    let scenario = match args.seed {
+        Some(seed) => phdose_sim::sweep::perturb(&loaded.scenario, &loaded.uncertainties, seed).map_err(sim_error)?,
+        None => loaded.scenario.clone(),
+    };
+    let sim = simulate(scenario, &loaded.scenario, loaded.file, args.seed, !args.no_baseline)?;
     let written = match &args.out {
         Some(dir) => {
             let mut contents = vec![("controller.csv", output::csv(&sim.controller.trajectory))];

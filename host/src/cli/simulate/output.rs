@@ -283,6 +283,13 @@ pub fn table(sim: &Simulation, written: &[(&str, String)]) -> String {
         None => "built-in scenario (invented: the rinse-water tank of a fictional plating shop)".to_owned(),
     };
     let _ = writeln!(s, "Simulation of \"{}\" — {source}", sc.skid.name);
+    if sim.drawn {
+        let _ = writeln!(
+            s,
+            "  plant drawn from the declared uncertainties with seed {} (as `phdose sweep` run {})",
+            sim.seed, sim.seed
+        );
+    }
     let _ = writeln!(
         s,
         "  setpoint pH {} in a {} pH band, controller tick {} s; plant {} L, step {} s, seed {}",

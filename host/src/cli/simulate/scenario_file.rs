@@ -2,6 +2,7 @@
 //! and `run` sections, which `pack` ignores) or the built-in scenario.
 
 use phdose_sim::scenario::{self, Disturbances, PlantSettings, RunSettings, Scenario};
+use phdose_sim::sweep::Uncertainties;
 
 use crate::cli::CliError;
 use crate::cli::config::MAX_FILE_BYTES;
@@ -15,8 +16,18 @@ pub const TEMPLATE: &str = include_str!("../../../examples-data/plating-rinse-sc
 pub struct Loaded {
     /// The scenario.
     pub scenario: Scenario,
+    /// Its declared uncertainties (the `[sweep]` section, or the defaults).
+    pub uncertainties: Uncertainties,
     /// The file, or `None` for the built-in scenario.
     pub file: Option<String>,
+}
+
+/// Parses a scenario file's text: the scenario and its declared uncertainties.
+pub fn parse_with_uncertainties(text: &str) -> Result<(Scenario, Uncertainties), TomlError> {
+    let scenario = parse(text)?;
+    let (_, sections) = parse_with_sections(text)?;
+    let uncertainties: Uncertainties = sections.get("sweep")?.unwrap_or_default();
+    Ok((scenario, uncertainties))
 }
 
 /// Parses a scenario file's text: the skid and the three simulator sections (`plant` and `run`
@@ -40,11 +51,13 @@ pub fn parse(text: &str) -> Result<Scenario, TomlError> {
 /// Reads the scenario at `path`, or the built-in one.
 pub fn load(path: Option<&str>) -> Result<Loaded, CliError> {
     match path {
-        None => Ok(Loaded { scenario: scenario::plating_rinse(), file: None }),
+        None => Ok(Loaded { scenario: scenario::plating_rinse(), uncertainties: Uncertainties::default(), file: None }),
         Some(path) => {
             let text = files::read(path, MAX_FILE_BYTES, "scenario file")?;
-            let scenario = parse(&text).map_err(|e| CliError::new(format!("scenario file '{path}': {e}")))?;
-            Ok(Loaded { scenario, file: Some(path.to_owned()) })
+            let (scenario, uncertainties) =
+                parse_with_uncertainties(&text).map_err(|e| CliError::new(format!("scenario file '{path}': {e}")))?;
+            uncertainties.validate().map_err(|e| CliError::new(format!("scenario file '{path}': [sweep] {e}")))?;
+            Ok(Loaded { scenario, uncertainties, file: Some(path.to_owned()) })
         }
     }
 }
