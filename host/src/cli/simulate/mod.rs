@@ -29,6 +29,9 @@ gives a price) and interlock trips with their codes.
 Without SCENARIO.toml: the built-in scenario (invented): the rinse-water tank of a fictional
 plating shop — acidic rinse with bicarbonate and an undeclared phosphate cleaner, 25 % caustic,
 a 30 % flow step after 2 h (back after 5 h) and a 20-minute acid slug after 3.5 h; 8 h.
+--builtin henson-seborg runs the published benchmark instead: the pH neutralization tank of
+Henson & Seborg (1994; acid, buffer and base streams, 2.9 L, nominal steady state pH 7.0) with
+a step in the buffer stream (its size is ours; see `phdose_sim::benchmark`).
 `--template` prints it as an annotated scenario file: a skid file (what `pack` deploys) plus
 [plant], [disturbances] and [run] sections.
 
@@ -53,6 +56,7 @@ integral_time_s}; files {controller_csv, baseline_csv, svg} (null when not writt
 Examples:
   phdose simulate
   phdose simulate --out sim-out
+  phdose simulate --builtin henson-seborg
   phdose simulate --template > scenario.toml
   phdose simulate scenario.toml --json
   phdose simulate scenario.toml --seed 42
@@ -71,6 +75,9 @@ pub struct Args {
     /// the plant drawn from seed N, and N as the seed of the noise and random slugs
     #[arg(long, value_name = "N")]
     pub seed: Option<u64>,
+    /// Which built-in scenario runs when no file is given
+    #[arg(long, value_enum, value_name = "NAME", default_value = "plating-rinse", conflicts_with = "file")]
+    pub builtin: scenario_file::BuiltIn,
     /// Run only the configured controller (no baseline)
     #[arg(long)]
     pub no_baseline: bool,
@@ -163,7 +170,7 @@ pub fn run(args: Args) -> Result<Reply, CliError> {
     if args.template {
         return Ok(Reply { stdout: scenario_file::TEMPLATE.to_owned(), code: 0 });
     }
-    let loaded = scenario_file::load(args.file.as_deref())?;
+    let loaded = scenario_file::load_or(args.file.as_deref(), args.builtin)?;
     let scenario = match args.seed {
         Some(seed) => phdose_sim::sweep::perturb(&loaded.scenario, &loaded.uncertainties, seed).map_err(sim_error)?,
         None => loaded.scenario.clone(),

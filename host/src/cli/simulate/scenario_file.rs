@@ -48,10 +48,31 @@ pub fn parse(text: &str) -> Result<Scenario, TomlError> {
     Ok(Scenario { skid, plant, disturbances, run })
 }
 
+/// The built-in scenarios.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, clap::ValueEnum)]
+pub enum BuiltIn {
+    /// The rinse-water tank of a fictional plating shop (invented).
+    #[default]
+    PlatingRinse,
+    /// The pH neutralization tank of Henson & Seborg (1994), a published benchmark.
+    HensonSeborg,
+}
+
 /// Reads the scenario at `path`, or the built-in one.
 pub fn load(path: Option<&str>) -> Result<Loaded, CliError> {
+    load_or(path, BuiltIn::PlatingRinse)
+}
+
+/// Reads the scenario at `path`, or the built-in `builtin`.
+pub fn load_or(path: Option<&str>, builtin: BuiltIn) -> Result<Loaded, CliError> {
     match path {
-        None => Ok(Loaded { scenario: scenario::plating_rinse(), uncertainties: Uncertainties::default(), file: None }),
+        None => {
+            let scenario = match builtin {
+                BuiltIn::PlatingRinse => scenario::plating_rinse(),
+                BuiltIn::HensonSeborg => phdose_sim::benchmark::henson_seborg(),
+            };
+            Ok(Loaded { scenario, uncertainties: Uncertainties::default(), file: None })
+        }
         Some(path) => {
             let text = files::read(path, MAX_FILE_BYTES, "scenario file")?;
             let (scenario, uncertainties) =
