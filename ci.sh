@@ -79,6 +79,7 @@ do_doc() {
 do_bench() {
     step "compile benches"
     cargo bench -p phdose --no-run
+    cargo bench -p phdose-sim --no-run
 }
 
 do_fuzz() {

@@ -51,6 +51,9 @@ struct Rig {
     drift_mv: [f64; 3],
     /// The plant ignores the caustic pump (a pump that strokes but delivers nothing).
     dead_pump: bool,
+    /// The caustic pump delivers this whatever it is told, L/h, while the dosing-enable relay is
+    /// closed (a stuck pump: only the relay stops it).
+    stuck_l_per_h: Option<f64>,
     flow_l_per_h: f64,
 }
 
@@ -65,6 +68,7 @@ impl Rig {
             k: 0,
             drift_mv: [0.0; 3],
             dead_pump: false,
+            stuck_l_per_h: None,
             flow_l_per_h: 1200.0,
         }
     }
@@ -92,7 +96,11 @@ impl Rig {
     /// One tick with `inputs`, then the plant advances with what the pumps deliver.
     fn tick(&mut self, inputs: &TickInputs<f64>) -> TickOutputs<f64> {
         let out = self.c.step(inputs);
-        let q = if self.dead_pump { 0.0 } else { out.delivered_l_per_h[0] };
+        let q = match self.stuck_l_per_h {
+            Some(q) if out.dosing_enabled => q,
+            _ if self.dead_pump => 0.0,
+            _ => out.delivered_l_per_h[0],
+        };
         let flow = if inputs.flow_switch { self.flow_l_per_h } else { 0.0 };
         self.plant.advance(inputs.dt_s.clamp(0.0, 120.0), flow, q);
         self.k += 1;
@@ -194,9 +202,9 @@ where
         "{reason:?}: pumps still running {:?}",
         out.delivered_l_per_h
     );
-    if reason == TripReason::ModelMismatch {
+    if matches!(reason, TripReason::ModelMismatch | TripReason::Runaway) {
         // Only observable while dosing (see the supervisor's docs): the reset restarts dosing and
-        // the mismatch trips again after its trip time while the cause persists.
+        // the condition trips again after its time while the cause persists.
         let mut i = rig.inputs(ModeRequest::Auto);
         cause(&mut rig, &mut i);
         i.reset = true;
@@ -206,7 +214,7 @@ where
             cause(&mut rig, &mut i);
             rig.tick(&i).trip
         });
-        assert_eq!(again.map(|t| t.reason), Some(reason), "the persisting mismatch did not trip again");
+        assert_eq!(again.map(|t| t.reason), Some(reason), "the persisting cause did not trip again");
     } else {
         // Reset while the cause persists: stays tripped, pumps off.
         let mut i = rig.inputs(ModeRequest::Auto);
@@ -249,8 +257,11 @@ fn a_low_measured_flow_trips_as_no_flow() {
 
 #[test]
 fn ph_beyond_the_high_limit_trips() {
-    // A creeping rise (0.02 pH/s, under the rate check) until beyond the high limit 10.
-    let skid = example::plating_rinse();
+    // A creeping rise (0.02 pH/s, under the rate check) until beyond the high limit 10. The
+    // runaway trip would see the rising reading with the pump off first: its time is set beyond
+    // this test's reach, so the test sees the hard limit alone (the runaway has its own test).
+    let mut skid = example::plating_rinse();
+    skid.interlocks.runaway_off_s = 3600.0;
     trips(
         &skid,
         TripReason::PhHigh,
@@ -380,6 +391,29 @@ fn a_pump_that_delivers_nothing_trips_on_model_mismatch() {
     caustic.max_per_hour_l = 20.0;
     caustic.max_per_day_l = 200.0;
     trips(&skid, TripReason::ModelMismatch, 3600.0, |rig, _| rig.dead_pump = true, |rig| rig.dead_pump = false);
+}
+
+/// A caustic pump stuck at 1 L/h (2.5 times the demand) after 30 min in auto: the loop cuts its
+/// command, the pH keeps rising with the pump "off", and the runaway trip (112) stops it — before
+/// the pH reaches the high limit, which is what the trip is for.
+#[test]
+fn a_stuck_pump_trips_on_runaway_before_the_high_limit() {
+    let skid = example::plating_rinse();
+    trips(
+        &skid,
+        TripReason::Runaway,
+        1200.0,
+        |rig, _| {
+            rig.stuck_l_per_h = Some(1.0);
+            assert!(rig.plant.probe_ph < 10.0, "reached the high limit first: {}", rig.plant.probe_ph);
+        },
+        |rig| {
+            rig.stuck_l_per_h = None;
+            for _ in 0..360 {
+                rig.tick(&rig.inputs(ModeRequest::Off));
+            }
+        },
+    );
 }
 
 #[test]

@@ -168,6 +168,10 @@ fn skid() -> Skid {
             mismatch_trip_ph: 2.0,
             // Ten residence times.
             mismatch_trip_s: 900.0,
+            // Runaway: the example skid's margin; 30 s of pump off, well beyond this tank's
+            // probe lag (5 s) and its own overshoot, well inside its 89 s residence time.
+            runaway_margin_ph: 0.8,
+            runaway_off_s: 30.0,
         },
         probes: ProbeSettings {
             probes: Default::default(),

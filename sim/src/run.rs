@@ -326,7 +326,9 @@ pub fn run(scenario: &Scenario, law: Loop, seed: Option<u64>) -> Result<Trajecto
         last_trip = if out.state == State::Tripped { trip } else { 0 };
         // What the pumps really put into the line.
         let mut delivered = out.delivered_l_per_h.map(|q| q * p.pump_delivery_factor);
-        if p.caustic_stuck_on_at_s.is_some_and(|at| t >= at) {
+        // A stuck pump ignores its command, but not its power: the dosing-enable relay (the
+        // hardwired interlock SAFETY.md requires) still cuts it when the controller stops dosing.
+        if p.caustic_stuck_on_at_s.is_some_and(|at| t >= at) && out.dosing_enabled {
             delivered[0] = caustic_max * p.pump_delivery_factor;
         }
         line.push(t, delivered);

@@ -48,7 +48,8 @@ pub struct PlantSettings {
     /// True reagent strength as a fraction of the configured one (1 = as labelled).
     #[serde(default = "one")]
     pub reagent_strength_factor: f64,
-    /// From this time on the caustic pump runs at its maximum whatever it is told (a fault), s.
+    /// From this time on the caustic pump runs at its maximum whatever it is told (a fault), s;
+    /// the dosing-enable relay (a hardwired interlock) still stops it when dosing is disabled.
     #[serde(default)]
     pub caustic_stuck_on_at_s: Option<f64>,
 }

@@ -21,7 +21,7 @@ use super::Skid;
 /// The four magic bytes.
 pub const MAGIC: [u8; 4] = *b"PHDK";
 /// The format version this build writes and reads.
-pub const FORMAT_VERSION: u16 = 1;
+pub const FORMAT_VERSION: u16 = 2;
 /// Header bytes before the payload.
 pub const HEADER_LEN: usize = 8;
 /// CRC bytes after the payload.
@@ -191,10 +191,16 @@ mod tests {
         assert!(matches!(decode(&buf[..n - 1]), Err(BlobError::Crc { .. })));
         // A newer version with a valid CRC is refused as such.
         let mut newer = buf;
-        newer[4] = 2;
+        newer[4] = 3;
         let crc = CRC32.checksum(&newer[..n - 4]);
         newer[n - 4..n].copy_from_slice(&crc.to_le_bytes());
-        assert_eq!(decode(&newer[..n]), Err(BlobError::UnsupportedVersion { found: 2 }));
+        assert_eq!(decode(&newer[..n]), Err(BlobError::UnsupportedVersion { found: 3 }));
+        // An older version (1: before the runaway interlock's settings) is refused too.
+        let mut older = buf;
+        older[4] = 1;
+        let crc = CRC32.checksum(&older[..n - 4]);
+        older[n - 4..n].copy_from_slice(&crc.to_le_bytes());
+        assert_eq!(decode(&older[..n]), Err(BlobError::UnsupportedVersion { found: 1 }));
         assert!(encode(&example::plating_rinse(), &mut [0_u8; 16]).is_err());
     }
 }

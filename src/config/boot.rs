@@ -319,6 +319,8 @@ pub fn check<R: Real>(skid: &Skid) -> BootReport {
         ("interlocks.max_tick_age_s", l.max_tick_age_s, 0.0, 3600.0, true),
         ("interlocks.mismatch_trip_ph", l.mismatch_trip_ph, 0.0, 14.0, true),
         ("interlocks.mismatch_trip_s", l.mismatch_trip_s, 0.0, 1e7, true),
+        ("interlocks.runaway_margin_ph", l.runaway_margin_ph, 0.0, 7.0, true),
+        ("interlocks.runaway_off_s", l.runaway_off_s, 0.0, 3600.0, true),
         ("probes.max_spread_ph", p.max_spread_ph, 0.0, 14.0, true),
         ("probes.calibration_max_age_days", p.calibration_max_age_days, 0.0, 3650.0, true),
     ] {

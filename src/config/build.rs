@@ -191,6 +191,8 @@ pub fn controller_config<R: Real>(skid: &Skid) -> Result<ControllerConfig<R, MOD
             max_tick_age_s: r(l.max_tick_age_s),
             mismatch_trip_ph: r(l.mismatch_trip_ph),
             mismatch_trip_s: r(l.mismatch_trip_s),
+            runaway_margin_ph: r(l.runaway_margin_ph),
+            runaway_off_s: r(l.runaway_off_s),
         },
         probes,
         vote: vote::<R>(&skid.probes)?,

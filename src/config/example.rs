@@ -85,6 +85,8 @@ pub fn plating_rinse() -> Skid {
             max_tick_age_s: 30.0,
             mismatch_trip_ph: 2.0,
             mismatch_trip_s: 1800.0,
+            runaway_margin_ph: 0.8,
+            runaway_off_s: 40.0,
         },
         probes: ProbeSettings {
             probes,

@@ -149,6 +149,13 @@ pub struct InterlockSettings {
     pub mismatch_trip_ph: f32,
     /// … for this long, s (> 0, ≤ 10⁷).
     pub mismatch_trip_s: f32,
+    /// Runaway trip: the pH farther than this from the setpoint on a pump's side (above it for
+    /// the caustic pump, below for the acid pump), pH (> 0, ≤ 7; more than half the band) …
+    pub runaway_margin_ph: f32,
+    /// … and still moving away, with that pump off for longer than this, s (> 0, ≤ 3600; longer
+    /// than the reagent's transport delay plus the probe's dead time and lag, or the loop's own
+    /// overshoot trips it).
+    pub runaway_off_s: f32,
 }
 
 /// One probe's calibration (the electrode line of [`crate::probe::calibration::Calibration`]).

@@ -17,7 +17,7 @@
 //! The control law's cost (see [`super::regulator`]: a steady tick is six charge-balance
 //! evaluations and one warm pH solve; a recompute adds one dose plan), plus a constant amount
 //! of arithmetic: at most three probe ticks (constant time each), one vote over at most three
-//! readings, at most eleven trip conditions, two pump commands and two ledger bookings (each at
+//! readings, at most twelve trip conditions, two pump commands and two ledger bookings (each at
 //! most 36 bucket moves, only on ticks longer than five minutes).
 
 use heapless::Vec;
@@ -60,6 +60,10 @@ pub struct Interlocks<R: Real> {
     pub mismatch_trip_ph: R,
     /// … for this long trips, s (> 0).
     pub mismatch_trip_s: R,
+    /// Runaway: the pH farther than this from the setpoint on a pump's side, pH (> 0) …
+    pub runaway_margin_ph: R,
+    /// … still moving away, with that pump off for longer than this, s (> 0).
+    pub runaway_off_s: R,
 }
 
 /// Everything a controller is built from (see [`crate::config`] for the stored form and the
@@ -204,6 +208,10 @@ pub struct Controller<R: Real, const N: usize> {
     delivered_l_per_h: [R; 2],
     mismatch_s: R,
     last_residual_ph: Option<R>,
+    /// Per pump (caustic, acid): how long it has delivered nothing while dosing, s.
+    off_s: [R; 2],
+    /// The voted pH of the last tick.
+    last_ph: Option<R>,
 }
 
 impl<R: Real, const N: usize> Controller<R, N> {
@@ -243,6 +251,8 @@ impl<R: Real, const N: usize> Controller<R, N> {
             delivered_l_per_h: [R::ZERO; 2],
             mismatch_s: R::ZERO,
             last_residual_ph: None,
+            off_s: [R::ZERO; 2],
+            last_ph: None,
         })
     }
 
@@ -339,6 +349,30 @@ impl<R: Real, const N: usize> Controller<R, N> {
             let r = self.last_residual_ph.map_or(0.0, |r| f(r.abs()));
             c.set(TripReason::ModelMismatch, r, f(self.interlocks.mismatch_trip_ph));
         }
+        // Runaway (112): a pump that has delivered nothing for longer than the runaway time
+        // while dosing, and the pH past the margin on that pump's side and still moving away
+        // (the caustic pump pushes up, the acid pump down). Whatever the model says: a pump
+        // that delivers without being told shows here.
+        let was_dosing = self.supervisor.state().doses();
+        let sp = self.law.settings().setpoint_ph;
+        let (margin, off_limit) = (self.interlocks.runaway_margin_ph, self.interlocks.runaway_off_s);
+        for ((off_s, delivered), (channel, up)) in
+            self.off_s.iter_mut().zip(self.delivered_l_per_h).zip(self.channels.iter().zip([R::ONE, -R::ONE]))
+        {
+            if was_dosing && channel.is_some() && delivered <= R::ZERO {
+                *off_s += probe_dt;
+            } else {
+                *off_s = R::ZERO;
+            }
+            if let (Some(ph), Some(last)) = (v.ph, self.last_ph)
+                && *off_s > off_limit
+                && up * (ph - sp) > margin
+                && up * (ph - last) > R::ZERO
+            {
+                c.set(TripReason::Runaway, f(ph), f(sp + up * margin));
+            }
+        }
+        self.last_ph = v.ph;
         let state = self.supervisor.step(self.boot_allows, &c, inputs.mode, inputs.reset);
         let dosing = state.doses();
 

@@ -60,19 +60,24 @@ pub enum TripReason {
     ModelMismatch,
     /// The configuration failed its boot checks.
     ConfigInvalid,
+    /// The pH runs away on the side only a pump pushes it, with that pump off for longer than
+    /// the runaway time and the pH still moving away: a pump delivering without being told
+    /// (stuck, siphoning), or an influent the skid cannot correct. Independent of the model.
+    Runaway,
 }
 
 impl TripReason {
     /// The order in which a reason is latched when several hold at once: root causes first
     /// (stale inputs and broken probes make the other conditions meaningless), then the
     /// process conditions.
-    pub const PRIORITY: [Self; 11] = [
+    pub const PRIORITY: [Self; 12] = [
         Self::ConfigInvalid,
         Self::StaleInputs,
         Self::ProbeFault,
         Self::ProbeDisagreement,
         Self::NoFlow,
         Self::ReagentLow,
+        Self::Runaway,
         Self::PhHigh,
         Self::PhLow,
         Self::OverdoseHour,
@@ -81,7 +86,7 @@ impl TripReason {
     ];
 
     /// Every reason, in code order.
-    pub const ALL: [Self; 11] = [
+    pub const ALL: [Self; 12] = [
         Self::NoFlow,
         Self::PhHigh,
         Self::PhLow,
@@ -93,9 +98,10 @@ impl TripReason {
         Self::ReagentLow,
         Self::ModelMismatch,
         Self::ConfigInvalid,
+        Self::Runaway,
     ];
 
-    /// The stable numeric code (101–111), for displays, logs and the host tools.
+    /// The stable numeric code (101–112), for displays, logs and the host tools.
     pub const fn code(self) -> u16 {
         match self {
             Self::NoFlow => 101,
@@ -109,6 +115,7 @@ impl TripReason {
             Self::ReagentLow => 109,
             Self::ModelMismatch => 110,
             Self::ConfigInvalid => 111,
+            Self::Runaway => 112,
         }
     }
 
@@ -126,6 +133,7 @@ impl TripReason {
             Self::ReagentLow => "reagent tank low",
             Self::ModelMismatch => "measured pH and model disagree beyond the trip bound",
             Self::ConfigInvalid => "configuration failed its boot checks",
+            Self::Runaway => "pH running away on a pump's side with that pump off (stuck or siphoning pump?)",
         }
     }
 }
@@ -225,7 +233,7 @@ impl Conditions {
     }
 
     /// The condition to latch: the first that holds in [`TripReason::PRIORITY`] order,
-    /// skipping `NoFlow` when `dosing` is false. At most 11 × 11 comparisons.
+    /// skipping `NoFlow` when `dosing` is false. At most 12 × 12 comparisons.
     pub fn first(&self, dosing: bool) -> Option<Trip> {
         TripReason::PRIORITY
             .iter()
@@ -332,8 +340,8 @@ mod tests {
 
     #[test]
     fn codes_are_stable_and_distinct() {
-        let codes: [u16; 11] = TripReason::ALL.map(TripReason::code);
-        assert_eq!(codes, [101, 102, 103, 104, 105, 106, 107, 108, 109, 110, 111]);
+        let codes: [u16; 12] = TripReason::ALL.map(TripReason::code);
+        assert_eq!(codes, [101, 102, 103, 104, 105, 106, 107, 108, 109, 110, 111, 112]);
     }
 
     #[test]
