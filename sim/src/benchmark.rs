@@ -173,20 +173,9 @@ fn skid() -> Skid {
             runaway_margin_ph: 0.8,
             runaway_off_s: 30.0,
         },
-        probes: ProbeSettings {
-            probes: Default::default(),
-            min_slope_percent: 95.0,
-            max_slope_percent: 105.0,
-            max_abs_offset_mv: 30.0,
-            max_abs_mv: 600.0,
-            max_rate_ph_per_s: 0.2,
-            max_noise_mv: 5.0,
-            noise_time_s: 60.0,
-            frozen_band_mv: 0.05,
-            frozen_window_s: 900.0,
-            max_spread_ph: 0.4,
-            calibration_max_age_days: 30.0,
-        },
+        // The example skid's acceptance, validation and vote settings (common practice); the
+        // probes' own calibrations follow below.
+        probes: ProbeSettings { probes: Default::default(), ..phdose::config::example::plating_rinse().probes },
     };
     let named = skid.name.push_str("henson-seborg tank");
     debug_assert!(named.is_ok());
