@@ -98,7 +98,11 @@ pub const BORATE: AcidBaseSystem = AcidBaseSystem {
 };
 
 /// Sulfate's second proton: HSO4⁻ / SO4²⁻ (the first proton of H2SO4 is strong). pKa 1.99,
-/// ΔH° −21.9 kJ/mol — Benjamin, "Water Chemistry", 2nd ed. (checked).
+/// ΔH° −21.9 kJ/mol — Benjamin, "Water Chemistry", 2nd ed. (checked). Not replaced (issue 10):
+/// Dickson's (1990) ln K = 141.328 − 4276.1/T − 23.093·ln T (checked, via public transcriptions)
+/// gives pK 1.685 / 1.993 / 2.319 / 2.452 at 0 / 25 / 50 / 60 °C (calc), 0.011–0.025 away from
+/// the Clegg, Rard & Pitzer (1994) values quoted in the issue (1.674 / 1.979 / 2.330 / 2.477,
+/// from memory); which to adopt is still open.
 pub const SULFATE: AcidBaseSystem = AcidBaseSystem {
     key: "sulfate",
     forms: ["HSO4-", "SO4^2-", "", ""],
