@@ -29,37 +29,57 @@ pub const CARBONATE: AcidBaseSystem = AcidBaseSystem {
     parent_acid: "H2CO3",
 };
 
-/// Phosphate: H3PO4 / H2PO4⁻ / HPO4²⁻ / PO4³⁻. pKa and ΔH° (kJ/mol): 2.16; −8.0 · 7.20; 4.2 ·
-/// 12.35; 14.7 — Benjamin, "Water Chemistry", 2nd ed. (2015), table of acidity constants
-/// (checked, via a public transcription). Van 't Hoff temperature dependence.
+/// Phosphate: H3PO4 / H2PO4⁻ / HPO4²⁻ / PO4³⁻.
+/// Step 1: Bates (1951), J. Res. NBS 47, 127 (journal volume and page from memory):
+/// pK1 = 799.31/T − 4.5535 + 0.013486·T (coefficients from memory, as quoted in issue 10; said
+/// to agree with the Millero & Pierrot 1998 refit, not checked); pK1 = 2.056 / 2.148 / 2.278 /
+/// 2.339 at 0 / 25 / 50 / 60 °C (calc).
+/// Step 2: ln K2 = 172.1033 − 8814.715/T − 27.927·ln T, the S = 0 terms of Millero (1995),
+/// Geochim. Cosmochim. Acta 59, 661, K2P (Yao & Millero 1995; checked, via public
+/// transcriptions in open-source CO2-system codes); issue 10 names it the Millero & Pierrot
+/// (1998) refit of Bates & Acree (1943) (from memory). Rewritten in log10 form (a = 172.1033/ln10,
+/// b = −8814.715/ln10, d = −27.927); pK2 = 7.313 / 7.200 / 7.183 / 7.197 at 0 / 25 / 50 / 60 °C
+/// (calc).
+/// Step 3: pKa 12.35, ΔH° 14.7 kJ/mol — Benjamin, "Water Chemistry", 2nd ed. (2015), table of
+/// acidity constants (checked, via a public transcription); van 't Hoff temperature dependence.
 pub const PHOSPHATE: AcidBaseSystem = AcidBaseSystem {
     key: "phosphate",
     forms: ["H3PO4", "H2PO4-", "HPO4^2-", "PO4^3-"],
     steps: 3,
-    log_k: [LogK::vant_hoff(2.16, -8.0), LogK::vant_hoff(7.20, 4.2), LogK::vant_hoff(12.35, 14.7)],
+    log_k: [
+        LogK::analytic(4.5535, -799.31, -0.013_486, 0.0, 0.0),
+        LogK::analytic(172.1033 / core::f64::consts::LN_10, -8814.715 / core::f64::consts::LN_10, 0.0, -27.927, 0.0),
+        LogK::vant_hoff(12.35, 14.7),
+    ],
     charge_protonated: 0,
     parent_acid: "H3PO4",
 };
 
-/// Acetate: CH3COOH / CH3COO⁻. pKa 4.757, ΔH° −0.2 kJ/mol — Benjamin, "Water Chemistry", 2nd ed.
-/// (2015), Appendix A (checked, via a public transcription); Goldberg, Kishore & Lennen (2002),
-/// J. Phys. Chem. Ref. Data 31, 231 give 4.756; −0.41 (from memory).
+/// Acetate: CH3COOH / CH3COO⁻. Harned & Ehlers (1933), J. Am. Chem. Soc. 55, 652 (journal
+/// volume and page from memory): pK = 1170.48/T − 3.1649 + 0.013399·T, measured 0–60 °C
+/// (coefficients from memory, as quoted in issue 10); pK = 4.780 / 4.756 / 4.787 / 4.812 at
+/// 0 / 25 / 50 / 60 °C (calc). Goldberg, Kishore & Lennen (2002), J. Phys. Chem. Ref. Data 31,
+/// 231 give 4.756; ΔH° −0.41 kJ/mol, ΔCp° −142 J/(K·mol) (from memory), which the fit agrees
+/// with. Beyond 60 °C the fit is extrapolated.
 pub const ACETATE: AcidBaseSystem = AcidBaseSystem {
     key: "acetate",
     forms: ["CH3COOH", "CH3COO-", "", ""],
     steps: 1,
-    log_k: [LogK::vant_hoff(4.757, -0.2), NONE, NONE],
+    log_k: [LogK::analytic(3.1649, -1170.48, -0.013_399, 0.0, 0.0), NONE, NONE],
     charge_protonated: 0,
     parent_acid: "CH3COOH",
 };
 
-/// Ammonium: NH4⁺ / NH3. pKa 9.244, ΔH° 52.21 kJ/mol — Benjamin, "Water Chemistry", 2nd ed.,
-/// Appendix A (checked, via a public transcription); Millero's lnK(T) gives 9.245 (calc).
+/// Ammonium: NH4⁺ / NH3. Bates & Pinching (1949) (from memory): pK = 2835.76/T − 0.6322 +
+/// 0.001225·T (coefficients from memory, as quoted in issue 10; said to agree with Millero &
+/// Pierrot 1998, not checked); pK = 10.084 / 9.244 / 8.539 / 8.288 at 0 / 25 / 50 / 60 °C
+/// (calc). Benjamin, "Water Chemistry", 2nd ed., Appendix A gives 9.244 at 25 °C (checked, via a
+/// public transcription).
 pub const AMMONIUM: AcidBaseSystem = AcidBaseSystem {
     key: "ammonium",
     forms: ["NH4+", "NH3", "", ""],
     steps: 1,
-    log_k: [LogK::vant_hoff(9.244, 52.21), NONE, NONE],
+    log_k: [LogK::analytic(0.6322, -2835.76, -0.001_225, 0.0, 0.0), NONE, NONE],
     charge_protonated: 1,
     parent_acid: "",
 };
@@ -78,7 +98,11 @@ pub const BORATE: AcidBaseSystem = AcidBaseSystem {
 };
 
 /// Sulfate's second proton: HSO4⁻ / SO4²⁻ (the first proton of H2SO4 is strong). pKa 1.99,
-/// ΔH° −21.9 kJ/mol — Benjamin, "Water Chemistry", 2nd ed. (checked).
+/// ΔH° −21.9 kJ/mol — Benjamin, "Water Chemistry", 2nd ed. (checked). Not replaced (issue 10):
+/// Dickson's (1990) ln K = 141.328 − 4276.1/T − 23.093·ln T (checked, via public transcriptions)
+/// gives pK 1.685 / 1.993 / 2.319 / 2.452 at 0 / 25 / 50 / 60 °C (calc), 0.011–0.025 away from
+/// the Clegg, Rard & Pitzer (1994) values quoted in the issue (1.674 / 1.979 / 2.330 / 2.477,
+/// from memory); which to adopt is still open.
 pub const SULFATE: AcidBaseSystem = AcidBaseSystem {
     key: "sulfate",
     forms: ["HSO4-", "SO4^2-", "", ""],
