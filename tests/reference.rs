@@ -366,7 +366,7 @@ fn khp_follows_hamer_pinching_acree_formula() {
 }
 
 // ---------------------------------------------------------------------------------------------
-// d. Catalogue pK(T) against the published temperature functions (issue 10).
+// d. Catalogue pK(T) against the published temperature functions.
 // ---------------------------------------------------------------------------------------------
 
 /// Tolerance for a catalogue pK against the value computed from its published function: the
@@ -388,7 +388,7 @@ fn catalogue_pk(system: &AcidBaseSystem, step: usize, celsius: f64) -> f64 {
 /// (python3, by hand, outside the crate) from the published temperature function named beside
 /// them, at T = 273.15 / 298.15 / 323.15 / 333.15 K, rounded to 0.001. They check that the
 /// catalogue carries each function with the right coefficients, sign and ln → log10 conversion.
-/// Coefficients marked "from memory" were quoted in issue 10 and not checked against the papers.
+/// Coefficients marked "from memory" have not been checked against the papers themselves.
 const PUBLISHED_PK_T: [(&str, usize, &str, [f64; 4]); 4] = [
     (
         "acetate",

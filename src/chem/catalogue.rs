@@ -31,12 +31,12 @@ pub const CARBONATE: AcidBaseSystem = AcidBaseSystem {
 
 /// Phosphate: H3PO4 / H2PO4⁻ / HPO4²⁻ / PO4³⁻.
 /// Step 1: Bates (1951), J. Res. NBS 47, 127 (journal volume and page from memory):
-/// pK1 = 799.31/T − 4.5535 + 0.013486·T (coefficients from memory, as quoted in issue 10; said
-/// to agree with the Millero & Pierrot 1998 refit, not checked); pK1 = 2.056 / 2.148 / 2.278 /
+/// pK1 = 799.31/T − 4.5535 + 0.013486·T (coefficients from memory, not yet checked against the paper;
+/// said to agree with the Millero & Pierrot 1998 refit, not checked); pK1 = 2.056 / 2.148 / 2.278 /
 /// 2.339 at 0 / 25 / 50 / 60 °C (calc).
 /// Step 2: ln K2 = 172.1033 − 8814.715/T − 27.927·ln T, the S = 0 terms of Millero (1995),
 /// Geochim. Cosmochim. Acta 59, 661, K2P (Yao & Millero 1995; checked, via public
-/// transcriptions in open-source CO2-system codes); issue 10 names it the Millero & Pierrot
+/// transcriptions in open-source CO2-system codes); also described as the Millero & Pierrot
 /// (1998) refit of Bates & Acree (1943) (from memory). Rewritten in log10 form (a = 172.1033/ln10,
 /// b = −8814.715/ln10, d = −27.927); pK2 = 7.313 / 7.200 / 7.183 / 7.197 at 0 / 25 / 50 / 60 °C
 /// (calc).
@@ -57,7 +57,7 @@ pub const PHOSPHATE: AcidBaseSystem = AcidBaseSystem {
 
 /// Acetate: CH3COOH / CH3COO⁻. Harned & Ehlers (1933), J. Am. Chem. Soc. 55, 652 (journal
 /// volume and page from memory): pK = 1170.48/T − 3.1649 + 0.013399·T, measured 0–60 °C
-/// (coefficients from memory, as quoted in issue 10); pK = 4.780 / 4.756 / 4.787 / 4.812 at
+/// (coefficients from memory, not yet checked against the paper); pK = 4.780 / 4.756 / 4.787 / 4.812 at
 /// 0 / 25 / 50 / 60 °C (calc). Goldberg, Kishore & Lennen (2002), J. Phys. Chem. Ref. Data 31,
 /// 231 give 4.756; ΔH° −0.41 kJ/mol, ΔCp° −142 J/(K·mol) (from memory), which the fit agrees
 /// with. Beyond 60 °C the fit is extrapolated.
@@ -71,8 +71,8 @@ pub const ACETATE: AcidBaseSystem = AcidBaseSystem {
 };
 
 /// Ammonium: NH4⁺ / NH3. Bates & Pinching (1949) (from memory): pK = 2835.76/T − 0.6322 +
-/// 0.001225·T (coefficients from memory, as quoted in issue 10; said to agree with Millero &
-/// Pierrot 1998, not checked); pK = 10.084 / 9.244 / 8.539 / 8.288 at 0 / 25 / 50 / 60 °C
+/// 0.001225·T (coefficients from memory, not yet checked against the paper; said to agree with
+/// Millero & Pierrot 1998, not checked); pK = 10.084 / 9.244 / 8.539 / 8.288 at 0 / 25 / 50 / 60 °C
 /// (calc). Benjamin, "Water Chemistry", 2nd ed., Appendix A gives 9.244 at 25 °C (checked, via a
 /// public transcription).
 pub const AMMONIUM: AcidBaseSystem = AcidBaseSystem {
@@ -98,10 +98,10 @@ pub const BORATE: AcidBaseSystem = AcidBaseSystem {
 };
 
 /// Sulfate's second proton: HSO4⁻ / SO4²⁻ (the first proton of H2SO4 is strong). pKa 1.99,
-/// ΔH° −21.9 kJ/mol — Benjamin, "Water Chemistry", 2nd ed. (checked). Not replaced (issue 10):
+/// ΔH° −21.9 kJ/mol — Benjamin, "Water Chemistry", 2nd ed. (checked). Not replaced yet:
 /// Dickson's (1990) ln K = 141.328 − 4276.1/T − 23.093·ln T (checked, via public transcriptions)
 /// gives pK 1.685 / 1.993 / 2.319 / 2.452 at 0 / 25 / 50 / 60 °C (calc), 0.011–0.025 away from
-/// the Clegg, Rard & Pitzer (1994) values quoted in the issue (1.674 / 1.979 / 2.330 / 2.477,
+/// the Clegg, Rard & Pitzer (1994) values (1.674 / 1.979 / 2.330 / 2.477,
 /// from memory); which to adopt is still open.
 pub const SULFATE: AcidBaseSystem = AcidBaseSystem {
     key: "sulfate",
