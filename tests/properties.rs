@@ -7,8 +7,8 @@
 
 use phdose::Real;
 use phdose::chem::{
-    Activity, CompositionError, Equilibrium, MAX_ACTIVITY_ITERATIONS, Solution, SolveError, SolverOptions,
-    bisection_iterations, catalogue, max_ph_iterations,
+    Activity, CompositionError, Equilibrium, FAST_DAVIES_ITERATIONS, MAX_ACTIVITY_ITERATIONS, Solution, SolveError,
+    SolverOptions, bisection_iterations, catalogue, max_ph_iterations,
 };
 use phdose::units::Celsius;
 use proptest::prelude::*;
@@ -160,7 +160,7 @@ fn charge_balance<R: Real, const N: usize>(s: &Solution<R, N>, eq: &Equilibrium<
 fn iteration_bound<R: Real>(activity: Activity) -> u32 {
     match activity {
         Activity::Ideal => max_ph_iterations::<R>(),
-        Activity::Davies => max_ph_iterations::<R>() * MAX_ACTIVITY_ITERATIONS + 1,
+        Activity::Davies => max_ph_iterations::<R>() * MAX_ACTIVITY_ITERATIONS + 1 + FAST_DAVIES_ITERATIONS,
     }
 }
 

@@ -15,7 +15,7 @@ use phdose::Real;
 use phdose::chem::catalogue::ALL;
 use phdose::chem::substance::SUBSTANCES;
 use phdose::chem::{
-    AcidBaseSystem, Activity, DAVIES_MAX_IONIC_STRENGTH, Equilibrium, LogK, MAX_ACTIVITY_ITERATIONS, PH_MAX, PH_MIN,
+    AcidBaseSystem, Activity, DAVIES_MAX_IONIC_STRENGTH, Equilibrium, FAST_DAVIES_ITERATIONS, LogK, MAX_ACTIVITY_ITERATIONS, PH_MAX, PH_MIN,
     Solution, SolverOptions, max_ph_iterations, salt,
 };
 use phdose::units::Celsius;
@@ -132,7 +132,7 @@ fn check<R: Real, const N: usize>(s: &Solution<R, N>, eq: &Equilibrium<R>, per_s
     // the first ionic strength from the composition (every start, warm or cold, spends it).
     let bound = match s.activity() {
         Activity::Ideal => per_solve_limit,
-        Activity::Davies => MAX_ACTIVITY_ITERATIONS * per_solve_limit + 1,
+        Activity::Davies => MAX_ACTIVITY_ITERATIONS * per_solve_limit + 1 + FAST_DAVIES_ITERATIONS,
     };
     assert!(eq.iterations >= 1 && eq.iterations <= bound, "{} iterations, bound {bound}", eq.iterations);
     let beta = eq.buffer_capacity_mol_per_l_per_ph.to_f64();
