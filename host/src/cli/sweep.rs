@@ -187,10 +187,10 @@ type SummaryText = dyn Fn(&Summary) -> String;
 fn table(r: &SweepReport, loaded: &scenario_file::Loaded, wall_s: f64) -> String {
     let u = &loaded.uncertainties;
     let mut s = String::new();
-    let source = loaded.file.as_deref().map_or_else(|| "the built-in scenario".to_owned(), str::to_owned);
     let _ = writeln!(
         s,
-        "Sweep of {source}: {} runs (seeds {}-{}), {} s of wall time",
+        "Sweep of the {}: {} runs (seeds {}-{}), {} s of wall time",
+        loaded.source,
         r.runs,
         r.first_seed,
         r.first_seed.saturating_add(u64::from(r.runs).saturating_sub(1)),

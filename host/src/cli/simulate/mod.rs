@@ -109,8 +109,10 @@ pub struct Outcome {
 pub struct Simulation {
     /// The scenario run.
     pub scenario: Scenario,
-    /// The scenario file, `None` for the built-in one.
+    /// The scenario file, `None` for a built-in one.
     pub file: Option<String>,
+    /// Where the scenario came from, for the readable report.
+    pub source: String,
     /// The seed the runs used.
     pub seed: u64,
     /// The configured controller.
@@ -142,6 +144,7 @@ pub fn simulate(
     scenario: Scenario,
     nominal: &Scenario,
     file: Option<String>,
+    source: String,
     seed: Option<u64>,
     baseline: bool,
 ) -> Result<Simulation, CliError> {
@@ -157,6 +160,7 @@ pub fn simulate(
     Ok(Simulation {
         scenario,
         file,
+        source,
         seed: run_seed,
         controller,
         drawn: seed.is_some(),
@@ -175,7 +179,7 @@ pub fn run(args: Args) -> Result<Reply, CliError> {
         Some(seed) => phdose_sim::sweep::perturb(&loaded.scenario, &loaded.uncertainties, seed).map_err(sim_error)?,
         None => loaded.scenario.clone(),
     };
-    let sim = simulate(scenario, &loaded.scenario, loaded.file, args.seed, !args.no_baseline)?;
+    let sim = simulate(scenario, &loaded.scenario, loaded.file, loaded.source, args.seed, !args.no_baseline)?;
     let written = match &args.out {
         Some(dir) => {
             let mut contents = vec![("controller.csv", output::csv(&sim.controller.trajectory))];

@@ -278,14 +278,7 @@ pub fn table(sim: &Simulation, written: &[(&str, String)]) -> String {
     let sc = &sim.scenario;
     let c = &sim.controller;
     let mut s = String::new();
-    let source = match &sim.file {
-        Some(f) => format!("scenario file {f}"),
-        None if sc.plant.volume_l < 10.0 => {
-            "built-in benchmark (the neutralization tank of Henson & Seborg 1994)".to_owned()
-        }
-        None => "built-in scenario (invented: the rinse-water tank of a fictional plating shop)".to_owned(),
-    };
-    let _ = writeln!(s, "Simulation of \"{}\" — {source}", sc.skid.name);
+    let _ = writeln!(s, "Simulation of \"{}\" — {}", sc.skid.name, sim.source);
     if sim.drawn {
         let _ = writeln!(
             s,

@@ -20,6 +20,8 @@ pub struct Loaded {
     pub uncertainties: Uncertainties,
     /// The file, or `None` for the built-in scenario.
     pub file: Option<String>,
+    /// Where it came from, for the readable report ("scenario file x.toml", "built-in …").
+    pub source: String,
 }
 
 /// Parses a scenario file's text: the scenario and its declared uncertainties.
@@ -48,6 +50,16 @@ pub fn parse(text: &str) -> Result<Scenario, TomlError> {
     Ok(Scenario { skid, plant, disturbances, run })
 }
 
+impl BuiltIn {
+    /// What the built-in scenario is, for the readable report.
+    pub const fn description(self) -> &'static str {
+        match self {
+            Self::PlatingRinse => "built-in scenario (invented: the rinse-water tank of a fictional plating shop)",
+            Self::HensonSeborg => "built-in benchmark (the neutralization tank of Henson & Seborg 1994)",
+        }
+    }
+}
+
 /// The built-in scenarios.
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq, clap::ValueEnum)]
 pub enum BuiltIn {
@@ -71,14 +83,19 @@ pub fn load_or(path: Option<&str>, builtin: BuiltIn) -> Result<Loaded, CliError>
                 BuiltIn::PlatingRinse => scenario::plating_rinse(),
                 BuiltIn::HensonSeborg => phdose_sim::benchmark::henson_seborg(),
             };
-            Ok(Loaded { scenario, uncertainties: Uncertainties::default(), file: None })
+            Ok(Loaded {
+                scenario,
+                uncertainties: Uncertainties::default(),
+                file: None,
+                source: builtin.description().to_owned(),
+            })
         }
         Some(path) => {
             let text = files::read(path, MAX_FILE_BYTES, "scenario file")?;
             let (scenario, uncertainties) =
                 parse_with_uncertainties(&text).map_err(|e| CliError::new(format!("scenario file '{path}': {e}")))?;
             uncertainties.validate().map_err(|e| CliError::new(format!("scenario file '{path}': [sweep] {e}")))?;
-            Ok(Loaded { scenario, uncertainties, file: Some(path.to_owned()) })
+            Ok(Loaded { scenario, uncertainties, file: Some(path.to_owned()), source: format!("scenario file {path}") })
         }
     }
 }
