@@ -456,8 +456,10 @@ fn memory_of_the_controller_and_its_settings() {
         "size_of Controller<f32, {MODEL_SYSTEMS}> = {c} B, Skid = {s} B, together {} B; Controller<f64, {MODEL_SYSTEMS}> = {c64} B",
         c + s
     );
-    // A regression guard, not the goal: the README reports the figures and the 2 KiB goal.
-    assert!(c + s < 8192, "{c} + {s}");
+    // The goal: both in 2 KiB (also a compile-time assertion in src/config/build.rs, so a
+    // board build fails before a test could).
+    assert!(c + s < phdose::config::build::MEMORY_BUDGET_BYTES);
+    assert!(c + s < 2048, "{c} + {s}");
 }
 
 /// An arbitrary sequence of operator and fault inputs.

@@ -499,7 +499,22 @@ fn non_finite_and_negative_amounts_are_rejected() {
     assert_eq!(s.add_strong_ion(-1, -0.1), Err(CompositionError::Negative { mol_per_l: -0.1 }));
     let mut bad_system = catalogue::ACETATE;
     bad_system.log_k[0].b = f64::NAN;
-    assert!(matches!(s.add_system(&bad_system, 0.001), Err(CompositionError::InvalidSystem(_))));
+    let bad_system: &'static _ = Box::leak(Box::new(bad_system));
+    assert!(matches!(s.add_system(bad_system, 0.001), Err(CompositionError::InvalidSystem(_))));
+    // Given pKa values must be finite for every step the system has.
+    assert!(matches!(
+        s.add_system_with_pka(&catalogue::PHOSPHATE, [2.1, f64::NAN, 12.3], 0.001),
+        Err(CompositionError::InvalidSystem(_))
+    ));
+    // One key, two sets of constants: refused, the solution unchanged.
+    let mut u: Solution<f64, 2> = Solution::standard();
+    u.add_system(&catalogue::ACETATE, 0.001).unwrap();
+    let kept = u.clone();
+    assert_eq!(
+        u.add_system_with_pka(&catalogue::ACETATE, [4.0, 0.0, 0.0], 0.001),
+        Err(CompositionError::ConflictingConstants)
+    );
+    assert_eq!(u, kept);
     // f32 too.
     let mut t: Solution<f32, 1> = Solution::standard();
     assert_eq!(t.add_system(&catalogue::PHOSPHATE, f32::NAN), Err(CompositionError::NonFinite));

@@ -1,5 +1,6 @@
 //! Fuzz target `solve_composition`: arbitrary bytes → a composition (up to 16 composition
-//! changes: catalogue systems, substances, strong ions, custom systems, temperature, activity,
+//! changes: catalogue systems, substances, strong ions, custom systems (their own temperature
+//! functions or given pKa values), temperature, activity,
 //! mixing) → one of five ways of solving it. Errors are fine; panics, hangs and broken
 //! invariants of a successful solve are not.
 //!
@@ -15,8 +16,8 @@ use phdose::Real;
 use phdose::chem::catalogue::ALL;
 use phdose::chem::substance::SUBSTANCES;
 use phdose::chem::{
-    AcidBaseSystem, Activity, DAVIES_MAX_IONIC_STRENGTH, Equilibrium, FAST_DAVIES_ITERATIONS, LogK, MAX_ACTIVITY_ITERATIONS, PH_MAX, PH_MIN,
-    Solution, SolverOptions, max_ph_iterations, salt,
+    AcidBaseSystem, Activity, DAVIES_MAX_IONIC_STRENGTH, Equilibrium, FAST_DAVIES_ITERATIONS, LogK,
+    MAX_ACTIVITY_ITERATIONS, PH_MAX, PH_MIN, Solution, SolverOptions, max_ph_iterations, salt,
 };
 use phdose::units::Celsius;
 
@@ -95,30 +96,62 @@ impl Input<'_> {
 
 const CUSTOM_KEYS: [&str; 3] = ["fuzz-a", "fuzz-b", "fuzz-c"];
 
-fn custom_system(inp: &mut Input<'_>) -> AcidBaseSystem {
-    let key = CUSTOM_KEYS[usize::from(inp.u8()) % CUSTOM_KEYS.len()];
-    let steps = inp.u8() % 5; // 0 and 4 are invalid on purpose
-    let mut log_k = [LogK::analytic(0.0, 0.0, 0.0, 0.0, 0.0); 3];
-    for k in &mut log_k {
-        *k = if inp.flag() {
-            LogK::vant_hoff(inp.coefficient(), inp.coefficient())
-        } else {
-            LogK::analytic(
-                inp.coefficient(),
-                inp.coefficient(),
-                inp.coefficient(),
-                inp.coefficient(),
-                inp.coefficient(),
-            )
-        };
-    }
-    AcidBaseSystem {
-        key,
-        forms: ["HxA", "Hx-1A", "Hx-2A", "Hx-3A"],
-        steps,
-        log_k,
-        charge_protonated: i8::from_le_bytes([inp.u8()]),
-        parent_acid: "HxA",
+/// Temperature functions of the pool's systems: a plausible one and finite ones whose pK at
+/// some temperature overflows or is huge.
+const FLAVOURS: [LogK; 5] = [
+    LogK::vant_hoff(4.0, 10.0),
+    LogK::analytic(0.0, 0.0, 0.0, 0.0, 1e300),
+    LogK::analytic(1e300, 0.0, 0.0, 0.0, 0.0),
+    LogK::analytic(f64::MAX, 0.0, 0.0, f64::MAX, 0.0),
+    LogK::analytic(0.0, -1e308, 1e-300, 0.0, 0.0),
+];
+/// Step counts of the pool: 0 and 4 are invalid on purpose.
+const STEP_COUNTS: u8 = 5;
+
+/// A solution refers to `&'static` systems, so the custom systems come from a pool built once
+/// (reachable for the whole run: no leak): every key × step count × protonated charge ×
+/// temperature function.
+fn pool() -> &'static [AcidBaseSystem] {
+    static POOL: std::sync::OnceLock<Vec<AcidBaseSystem>> = std::sync::OnceLock::new();
+    POOL.get_or_init(|| {
+        let mut v = Vec::new();
+        for key in CUSTOM_KEYS {
+            for steps in 0..STEP_COUNTS {
+                for charge in i8::MIN..=i8::MAX {
+                    for flavour in FLAVOURS {
+                        v.push(AcidBaseSystem {
+                            key,
+                            forms: ["HxA", "Hx-1A", "Hx-2A", "Hx-3A"],
+                            steps,
+                            log_k: [flavour; 3],
+                            charge_protonated: charge,
+                            parent_acid: "HxA",
+                        });
+                    }
+                }
+            }
+        }
+        v
+    })
+}
+
+/// A custom system from the pool.
+fn custom_system(inp: &mut Input<'_>) -> &'static AcidBaseSystem {
+    let pool = pool();
+    let key = usize::from(inp.u8()) % CUSTOM_KEYS.len();
+    let steps = usize::from(inp.u8() % STEP_COUNTS);
+    let charge = usize::from(inp.u8());
+    let flavour = usize::from(inp.u8()) % FLAVOURS.len();
+    let index = ((key * usize::from(STEP_COUNTS) + steps) * 256 + charge) * FLAVOURS.len() + flavour;
+    &pool[index]
+}
+
+/// A fuzzed temperature function (raw bits, edge values or plausible coefficients).
+fn custom_log_k(inp: &mut Input<'_>) -> LogK {
+    if inp.flag() {
+        LogK::vant_hoff(inp.coefficient(), inp.coefficient())
+    } else {
+        LogK::analytic(inp.coefficient(), inp.coefficient(), inp.coefficient(), inp.coefficient(), inp.coefficient())
     }
 }
 
@@ -175,7 +208,16 @@ fn run<R: Real, const N: usize>(inp: &mut Input<'_>, activity: Activity) {
             }
             3 => {
                 let sys = custom_system(inp);
-                s.add_system(&sys, R::from_f64(inp.amount()))
+                if inp.flag() {
+                    // Its own temperature functions (hostile ones included).
+                    s.add_system(sys, R::from_f64(inp.amount()))
+                } else {
+                    // pKa values from fuzzed temperature functions at the solution's
+                    // temperature: NaN, infinite, huge or plausible.
+                    let tk = s.temperature().kelvin();
+                    let pka = [custom_log_k(inp).pk(tk), custom_log_k(inp).pk(tk), custom_log_k(inp).pk(tk)];
+                    s.add_system_with_pka(sys, pka, R::from_f64(inp.amount()))
+                }
             }
             4 => Celsius::new(R::from_f64(inp.celsius())).map(|t| s.set_temperature(t)).map_err(Into::into),
             5 => {

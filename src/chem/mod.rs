@@ -11,7 +11,7 @@ pub mod system;
 pub mod water;
 
 pub use activity::{Activity, DAVIES_MAX_IONIC_STRENGTH};
-pub use solution::{Component, CompositionError, MAX_TOTAL_MOL_PER_L, Solution};
+pub use solution::{Component, CompositionError, MAX_SYSTEMS, MAX_TOTAL_MOL_PER_L, Solution};
 pub use solve::{
     Equilibrium, FAST_DAVIES_ITERATIONS, MAX_ACTIVITY_ITERATIONS, PH_MAX, PH_MIN, SolveError, SolverOptions,
     Speciation, bisection_iterations, max_ph_iterations,

@@ -41,6 +41,9 @@ pub enum CompositionError {
     InvalidSystem(SystemError),
     /// The temperature is outside 0–100 °C.
     Temperature(TemperatureOutOfRange),
+    /// A system of this key is already present with other constants (one with given pKa
+    /// values, the other with its temperature functions, or given different values).
+    ConflictingConstants,
     /// Mixing flows must be finite, ≥ 0 and not both zero (L/h).
     InvalidFlow {
         /// The first (own) flow, L/h.
@@ -64,6 +67,9 @@ impl core::fmt::Display for CompositionError {
             Self::UnknownSubstance(e) => core::fmt::Display::fmt(e, f),
             Self::InvalidSystem(e) => core::fmt::Display::fmt(e, f),
             Self::Temperature(e) => core::fmt::Display::fmt(e, f),
+            Self::ConflictingConstants => {
+                f.write_str("a system of this key is already present with other equilibrium constants")
+            }
             Self::InvalidFlow { first_l_per_h, second_l_per_h } => write!(
                 f,
                 "mixing flows {} and {} L/h must be finite, non-negative and not both zero",
@@ -91,8 +97,9 @@ impl From<TemperatureOutOfRange> for CompositionError {
 #[derive(Clone, Copy, Debug, PartialEq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct Component<R: Real> {
-    /// The system.
-    pub system: AcidBaseSystem,
+    /// The system (a reference: a solution holds no copy of the names and temperature
+    /// functions, which keeps a component at a few words).
+    pub system: &'static AcidBaseSystem,
     /// Total concentration of all its forms, mol/L (0–[`MAX_TOTAL_MOL_PER_L`]).
     pub total_mol_per_l: R,
     /// pKa of each step at the solution's temperature (cached; entries past `steps` unused).
@@ -105,7 +112,8 @@ pub struct Component<R: Real> {
 /// (eq/L, strong cations minus strong anions). Mixing adds them flow-weighted. Strong ions
 /// also contribute ½·Σc·z² to the ionic strength, which is tracked alongside.
 ///
-/// Memory: `N` × (about 200 bytes) plus a few words; no heap.
+/// Memory: `N` × (one pointer and four reals: 20 bytes for `f32` on a 32-bit MCU, 24 on a
+/// 64-bit host) plus seven words; no heap. `N` is at most [`MAX_SYSTEMS`].
 #[derive(Clone, Debug, PartialEq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct Solution<R: Real, const N: usize> {
@@ -116,7 +124,13 @@ pub struct Solution<R: Real, const N: usize> {
     activity: Activity,
     pkw: R,
     debye_huckel_a: R,
+    /// Bit `i` set: component `i`'s pKa values were given ([`Solution::add_system_with_pka`])
+    /// and do not follow the temperature.
+    given_pka: u32,
 }
+
+/// Most acid–base systems one solution can hold (the catalogue has 14).
+pub const MAX_SYSTEMS: usize = 32;
 
 fn check_amount<R: Real>(v: R) -> Result<R, CompositionError> {
     let x = v.to_f64();
@@ -135,6 +149,7 @@ impl<R: Real, const N: usize> Solution<R, N> {
     /// Pure water at `temperature` with the given activity mode.
     pub fn new(temperature: Celsius<R>, activity: Activity) -> Self {
         const { assert!(N > 0, "a solution needs room for at least one system") };
+        const { assert!(N <= MAX_SYSTEMS, "a solution holds at most MAX_SYSTEMS systems") };
         Self {
             components: Vec::new(),
             strong_charge_eq_per_l: R::ZERO,
@@ -143,7 +158,13 @@ impl<R: Real, const N: usize> Solution<R, N> {
             activity,
             pkw: water::pkw(temperature),
             debye_huckel_a: activity::debye_huckel_a(temperature),
+            given_pka: 0,
         }
+    }
+
+    /// `true` when component `index` holds given pKa values.
+    fn has_given_pka(&self, index: usize) -> bool {
+        self.given_pka & bit(index) != 0
     }
 
     /// Pure water at 25 °C with Davies activities.
@@ -202,8 +223,11 @@ impl<R: Real, const N: usize> Solution<R, N> {
         self.pkw = water::pkw(temperature);
         self.debye_huckel_a = activity::debye_huckel_a(temperature);
         let tk = temperature.kelvin();
-        for c in &mut self.components {
-            c.pk = pk_at(&c.system, tk);
+        let given = self.given_pka;
+        for (i, c) in self.components.iter_mut().enumerate() {
+            if given & bit(i) == 0 {
+                c.pk = pk_at(c.system, tk);
+            }
         }
     }
 
@@ -212,16 +236,63 @@ impl<R: Real, const N: usize> Solution<R, N> {
     /// electrically neutral compound whose protons the charge balance accounts for: CO2 for
     /// carbonate, NH3 for ammonium, H2SO4 for sulfate, H3PO4 for phosphate. Add strong ions
     /// (or use [`Solution::add_substance`]) for salts.
-    pub fn add_system(&mut self, system: &AcidBaseSystem, total_mol_per_l: R) -> Result<(), CompositionError> {
-        let amount = check_amount(total_mol_per_l)?;
+    pub fn add_system(&mut self, system: &'static AcidBaseSystem, total_mol_per_l: R) -> Result<(), CompositionError> {
         system.validate().map_err(CompositionError::InvalidSystem)?;
-        if let Some(c) = self.components.iter_mut().find(|c| c.system.key == system.key) {
+        self.add_component(system, total_mol_per_l, None)
+    }
+
+    /// Adds a system whose step constants are given here instead of by its temperature
+    /// functions: `pka[j]` is step `j + 1`'s pKa (entries past the system's steps are ignored),
+    /// held at every temperature. For constants found by fitting a titration curve, or taken
+    /// from a source at one temperature. Merges with a system of the same key only when that
+    /// one was added with the same pKa values; otherwise [`CompositionError::ConflictingConstants`].
+    pub fn add_system_with_pka(
+        &mut self,
+        system: &'static AcidBaseSystem,
+        pka: [R; MAX_STEPS],
+        total_mol_per_l: R,
+    ) -> Result<(), CompositionError> {
+        system.validate().map_err(CompositionError::InvalidSystem)?;
+        for (step, pk) in (0u8..).zip(pka.iter()).take(system.step_count()) {
+            if !pk.to_f64().is_finite() {
+                return Err(CompositionError::InvalidSystem(SystemError::NonFiniteConstant(step)));
+            }
+        }
+        self.add_component(system, total_mol_per_l, Some(pka))
+    }
+
+    /// Adds a validated system: `fixed` holds given pKa values, `None` the temperature's.
+    fn add_component(
+        &mut self,
+        system: &'static AcidBaseSystem,
+        total_mol_per_l: R,
+        fixed: Option<[R; MAX_STEPS]>,
+    ) -> Result<(), CompositionError> {
+        let amount = check_amount(total_mol_per_l)?;
+        if let Some(i) = self.components.iter().position(|c| c.system.key == system.key) {
+            let given = self.has_given_pka(i);
+            let Some(c) = self.components.get_mut(i) else { return Err(CompositionError::ConflictingConstants) };
+            let same_constants = match fixed {
+                None => !given,
+                Some(pka) => given && c.pk == pka,
+            };
+            if !same_constants {
+                return Err(CompositionError::ConflictingConstants);
+            }
             c.total_mol_per_l = check_amount(c.total_mol_per_l + amount)?;
             return Ok(());
         }
-        let component =
-            Component { system: *system, total_mol_per_l: amount, pk: pk_at(system, self.temperature.kelvin()) };
-        self.components.push(component).map_err(|_| CompositionError::CapacityExceeded { capacity: N })
+        let component = Component {
+            system,
+            total_mol_per_l: amount,
+            pk: fixed.unwrap_or_else(|| pk_at(system, self.temperature.kelvin())),
+        };
+        let index = self.components.len();
+        self.components.push(component).map_err(|_| CompositionError::CapacityExceeded { capacity: N })?;
+        if fixed.is_some() {
+            self.given_pka |= bit(index);
+        }
+        Ok(())
     }
 
     /// Adds `mol_per_l` of strong ions of charge `charge` (e.g. +1 for Na⁺, −1 for Cl⁻).
@@ -280,11 +351,11 @@ impl<R: Real, const N: usize> Solution<R, N> {
         let mean = self.temperature.celsius() * wa + other.temperature.celsius() * wb;
         let t = Celsius::new(mean.max(R::from_f64(MIN_CELSIUS)).min(R::from_f64(MAX_CELSIUS)))?;
         let mut out = Self::new(t, self.activity);
-        for c in &self.components {
-            out.add_system(&c.system, c.total_mol_per_l * wa)?;
+        for (i, c) in self.components.iter().enumerate() {
+            out.add_component(c.system, c.total_mol_per_l * wa, self.has_given_pka(i).then_some(c.pk))?;
         }
-        for c in &other.components {
-            out.add_system(&c.system, c.total_mol_per_l * wb)?;
+        for (i, c) in other.components.iter().enumerate() {
+            out.add_component(c.system, c.total_mol_per_l * wb, other.has_given_pka(i).then_some(c.pk))?;
         }
         out.strong_charge_eq_per_l = self.strong_charge_eq_per_l * wa + other.strong_charge_eq_per_l * wb;
         out.strong_ionic_strength_mol_per_l =
@@ -300,6 +371,11 @@ impl<R: Real, const N: usize> Solution<R, N> {
         }
         c.pk.get(step - 1).copied()
     }
+}
+
+/// The mask bit of component `index` (0 past [`MAX_SYSTEMS`], which `new` rules out).
+fn bit(index: usize) -> u32 {
+    u32::try_from(index).ok().and_then(|i| 1u32.checked_shl(i)).unwrap_or(0)
 }
 
 fn pk_at<R: Real>(system: &AcidBaseSystem, kelvin: R) -> [R; MAX_STEPS] {
@@ -372,6 +448,36 @@ mod tests {
         assert!(s.pkw() < 13.6);
         assert_eq!(s.component_pka(0, 2), None);
         assert_eq!(s.component_pka(5, 1), None);
+    }
+
+    #[test]
+    fn given_pka_values_hold_at_every_temperature_and_through_mixing() {
+        let mut s = Sol::standard();
+        s.add_system(&catalogue::AMMONIUM, 0.001).unwrap();
+        s.add_system_with_pka(&catalogue::FORMATE, [3.9, 0.0, 0.0], 0.002).unwrap();
+        // The same key with the same values merges; with other values or as a catalogue
+        // system it is refused and the solution is unchanged.
+        s.add_system_with_pka(&catalogue::FORMATE, [3.9, 0.0, 0.0], 0.001).unwrap();
+        assert!((s.total_of("formate") - 0.003).abs() < 1e-15);
+        let before = s.clone();
+        assert_eq!(
+            s.add_system_with_pka(&catalogue::FORMATE, [3.8, 0.0, 0.0], 0.001),
+            Err(CompositionError::ConflictingConstants)
+        );
+        assert_eq!(s.add_system(&catalogue::FORMATE, 0.001), Err(CompositionError::ConflictingConstants));
+        assert_eq!(s, before);
+        let nh4 = s.component_pka(0, 1).unwrap();
+        s.set_temperature(Celsius::new(45.0).unwrap());
+        assert_eq!(s.component_pka(1, 1), Some(3.9));
+        assert!(s.component_pka(0, 1).unwrap() < nh4 - 0.5, "the catalogue system follows the temperature");
+        let mut other = Sol::standard();
+        other.add_system(&catalogue::CARBONATE, 0.002).unwrap();
+        let m = other.mix(1.0, &s, 1.0).unwrap();
+        assert_eq!(m.component_pka(2, 1), Some(3.9));
+        let mut m2 = m.clone();
+        m2.set_temperature(Celsius::new(5.0).unwrap());
+        assert_eq!(m2.component_pka(2, 1), Some(3.9));
+        assert_ne!(m2.component_pka(0, 1), m.component_pka(0, 1));
     }
 
     fn mixes_at_100_c<R: Real>() {

@@ -27,6 +27,16 @@ use crate::units::Celsius;
 /// (a reagent adds at most [`crate::control::feedforward::REAGENT_CAPACITY`]).
 pub const MODEL_SYSTEMS: usize = 8;
 
+/// Bytes a controller's state and its settings may take together (`f32`, [`MODEL_SYSTEMS`]):
+/// 2 KiB, checked at compile time on every target (a 64-bit host's pointers make it the
+/// larger case; a 32-bit MCU saves 4 bytes per system reference).
+pub const MEMORY_BUDGET_BYTES: usize = 2048;
+
+const _: () = assert!(
+    core::mem::size_of::<Controller<f32, MODEL_SYSTEMS>>() + core::mem::size_of::<Skid>() < MEMORY_BUDGET_BYTES,
+    "the controller and its settings outgrew their 2 KiB budget"
+);
+
 /// `f32` setting → `R`.
 pub fn r<R: Real>(v: f32) -> R {
     R::from_f64(f64::from(v))

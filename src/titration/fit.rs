@@ -107,30 +107,35 @@ impl<R: Real> Effective<R> {
             s.add_system(&catalogue::CARBONATE, self.carbonate_mol_per_l)?;
         }
         let [(total_a, pka_a), (total_b, pka_b)] = self.buffers;
-        let [key_a, key_b] = BUFFER_KEYS;
+        let [system_a, system_b] = &FITTED_BUFFERS;
         // Two iterations.
-        for (key, total, pka) in [(key_a, total_a, pka_a), (key_b, total_b, pka_b)] {
+        for (system, total, pka) in [(system_a, total_a, pka_a), (system_b, total_b, pka_b)] {
             if total != R::ZERO {
-                s.add_system(&keyed_buffer(key, pka.to_f64()), total)?;
+                s.add_system_with_pka(system, [pka, R::ZERO, R::ZERO], total)?;
             }
         }
         Ok(s)
     }
 }
 
-/// The generic monoprotic buffer (HA/A⁻) of fitted buffer `index` (keyed by [`BUFFER_KEYS`])
-/// with the given pKa at 25 °C and ΔH° = 0; `None` for an index past [`BUFFER_KEYS`].
-pub fn buffer_system(index: usize, pka: f64) -> Option<AcidBaseSystem> {
-    BUFFER_KEYS.get(index).map(|key| keyed_buffer(key, pka))
+/// The generic monoprotic buffer (HA/A⁻) of fitted buffer `index` (keyed by [`BUFFER_KEYS`]);
+/// `None` for an index past [`BUFFER_KEYS`]. Its pKa is the fit's, given with
+/// [`Solution::add_system_with_pka`] (the system's own constant, pKa 7 with ΔH° = 0, is a
+/// placeholder that no fitted solution uses).
+pub fn buffer_system(index: usize) -> Option<&'static AcidBaseSystem> {
+    FITTED_BUFFERS.get(index)
 }
 
-fn keyed_buffer(key: &'static str, pka: f64) -> AcidBaseSystem {
+/// The systems of [`BUFFER_KEYS`], in that order.
+static FITTED_BUFFERS: [AcidBaseSystem; 2] = [keyed_buffer(BUFFER_KEYS[0]), keyed_buffer(BUFFER_KEYS[1])];
+
+const fn keyed_buffer(key: &'static str) -> AcidBaseSystem {
     AcidBaseSystem {
         key,
         forms: ["HA", "A-", "", ""],
         steps: 1,
         log_k: [
-            LogK::vant_hoff(pka, 0.0),
+            LogK::vant_hoff(7.0, 0.0),
             LogK::analytic(0.0, 0.0, 0.0, 0.0, 0.0),
             LogK::analytic(0.0, 0.0, 0.0, 0.0, 0.0),
         ],
@@ -628,8 +633,8 @@ mod tests {
         // Distinct keys: the solution would merge two buffers of the same key into one.
         assert_ne!(BUFFER_KEYS[0], BUFFER_KEYS[1]);
         assert!(!BUFFER_KEYS.contains(&catalogue::CARBONATE.key));
-        assert_eq!(buffer_system(1, 6.5).map(|s| s.key), Some(BUFFER_KEYS[1]));
-        assert_eq!(buffer_system(BUFFER_KEYS.len(), 6.5), None);
+        assert_eq!(buffer_system(1).map(|s| s.key), Some(BUFFER_KEYS[1]));
+        assert_eq!(buffer_system(BUFFER_KEYS.len()), None);
     }
 
     #[test]
