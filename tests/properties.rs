@@ -7,8 +7,8 @@
 
 use phdose::Real;
 use phdose::chem::{
-    Activity, CompositionError, Equilibrium, FAST_DAVIES_ITERATIONS, MAX_ACTIVITY_ITERATIONS, Solution, SolveError,
-    SolverOptions, bisection_iterations, catalogue, max_ph_iterations,
+    Activity, CompositionError, Equilibrium, MAX_ACTIVITY_ITERATIONS, QUICK_ITERATIONS, Solution, SolveError,
+    SolverOptions, bisection_iterations, catalogue, max_ph_iterations, max_solve_evaluations,
 };
 use phdose::units::Celsius;
 use proptest::prelude::*;
@@ -158,10 +158,14 @@ fn charge_balance<R: Real, const N: usize>(s: &Solution<R, N>, eq: &Equilibrium<
 
 /// The documented worst case of one `solve` (SolverOptions::max_iterations not lowered).
 fn iteration_bound<R: Real>(activity: Activity) -> u32 {
-    match activity {
+    let bound = max_solve_evaluations::<R>(activity);
+    // The documented composition of the bound.
+    let nested = match activity {
         Activity::Ideal => max_ph_iterations::<R>(),
-        Activity::Davies => max_ph_iterations::<R>() * MAX_ACTIVITY_ITERATIONS + 1 + FAST_DAVIES_ITERATIONS,
-    }
+        Activity::Davies => max_ph_iterations::<R>() * MAX_ACTIVITY_ITERATIONS + 1,
+    };
+    assert_eq!(bound, QUICK_ITERATIONS + nested);
+    bound
 }
 
 fn check_solution<R: Real>(c: &Composition, residual_tol: f64) -> Result<(), TestCaseError> {

@@ -16,7 +16,7 @@ use phdose::Real;
 use phdose::chem::catalogue::ALL;
 use phdose::chem::substance::SUBSTANCES;
 use phdose::chem::{
-    AcidBaseSystem, Activity, DAVIES_MAX_IONIC_STRENGTH, Equilibrium, FAST_DAVIES_ITERATIONS, LogK,
+    AcidBaseSystem, Activity, DAVIES_MAX_IONIC_STRENGTH, Equilibrium, QUICK_ITERATIONS, LogK,
     MAX_ACTIVITY_ITERATIONS, PH_MAX, PH_MIN, Solution, SolverOptions, max_ph_iterations, salt,
 };
 use phdose::units::Celsius;
@@ -160,12 +160,17 @@ fn custom_log_k(inp: &mut Input<'_>) -> LogK {
 fn check<R: Real, const N: usize>(s: &Solution<R, N>, eq: &Equilibrium<R>, per_solve_limit: u32) {
     let ph = eq.ph.to_f64();
     assert!(ph.is_finite() && (PH_MIN..=PH_MAX).contains(&ph), "pH {ph} outside [{PH_MIN}, {PH_MAX}]");
-    // Documented bound (src/chem/solve.rs): one inner solve ≤ min(limit, max_ph_iterations);
-    // Davies sums at most MAX_ACTIVITY_ITERATIONS inner solves + the evaluation that computes
-    // the first ionic strength from the composition (every start, warm or cold, spends it).
+    // Documented bound (src/chem/solve.rs, `solve_with`): the quick path spends at most
+    // min(limit, QUICK_ITERATIONS); then one inner solve ≤ min(limit, max_ph_iterations) in ideal
+    // mode, or MAX_ACTIVITY_ITERATIONS of them in Davies mode (+1 for the first ionic strength
+    // when the quick path is off).
+    // A lowered limit caps a whole ideal-mode solve.
+    let quick = per_solve_limit.min(QUICK_ITERATIONS);
+    let lowered = per_solve_limit < max_ph_iterations::<R>();
     let bound = match s.activity() {
-        Activity::Ideal => per_solve_limit,
-        Activity::Davies => MAX_ACTIVITY_ITERATIONS * per_solve_limit + 1 + FAST_DAVIES_ITERATIONS,
+        Activity::Ideal if lowered => per_solve_limit,
+        Activity::Ideal => quick + per_solve_limit,
+        Activity::Davies => quick + MAX_ACTIVITY_ITERATIONS * per_solve_limit + 1,
     };
     assert!(eq.iterations >= 1 && eq.iterations <= bound, "{} iterations, bound {bound}", eq.iterations);
     let beta = eq.buffer_capacity_mol_per_l_per_ph.to_f64();

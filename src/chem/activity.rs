@@ -40,6 +40,15 @@ pub fn davies_factor<R: Real>(a: R, ionic_strength_mol_per_l: R) -> R {
     a * (s / (R::ONE + s) - R::from_f64(0.3) * i)
 }
 
+/// d(Davies factor)/dI at `ionic_strength_mol_per_l`, L/mol: A·(1/(2·√I·(1+√I)²) − 0.3).
+/// The ionic strength is taken as at least 1e-12 mol/L (the slope is unbounded at 0).
+pub fn davies_factor_slope<R: Real>(a: R, ionic_strength_mol_per_l: R) -> R {
+    let i = ionic_strength_mol_per_l.max(R::from_f64(1e-12));
+    let s = i.sqrt();
+    let d = R::ONE + s;
+    a * (R::ONE / (R::from_f64(2.0) * s * d * d) - R::from_f64(0.3))
+}
+
 /// Activity coefficient γ of an ion of charge `z` given the Davies factor.
 pub fn gamma<R: Real>(factor: R, z: i32) -> R {
     (-factor * R::from_i32(z * z)).exp10()

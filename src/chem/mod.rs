@@ -3,6 +3,7 @@
 
 pub mod activity;
 pub mod catalogue;
+mod quick;
 pub mod salt;
 pub mod solution;
 pub mod solve;
@@ -11,10 +12,11 @@ pub mod system;
 pub mod water;
 
 pub use activity::{Activity, DAVIES_MAX_IONIC_STRENGTH};
+pub use quick::QUICK_ITERATIONS;
 pub use solution::{Component, CompositionError, MAX_SYSTEMS, MAX_TOTAL_MOL_PER_L, Solution};
 pub use solve::{
-    Equilibrium, FAST_DAVIES_ITERATIONS, MAX_ACTIVITY_ITERATIONS, PH_MAX, PH_MIN, SolveError, SolverOptions,
-    Speciation, bisection_iterations, max_ph_iterations,
+    Equilibrium, MAX_ACTIVITY_ITERATIONS, PH_MAX, PH_MIN, SolveError, SolverOptions, Speciation, bisection_iterations,
+    max_ph_iterations, max_solve_evaluations,
 };
 pub use substance::{Substance, UnknownSubstance};
 pub use system::{AcidBaseSystem, LogK, MAX_STEPS};

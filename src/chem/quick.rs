@@ -1,0 +1,368 @@
+//! The quick path of the pH solver: Halley steps on the log charge ratio, with the activity
+//! coefficients updated inside the iteration.
+//!
+//! The charge balance is split into its positive and negative parts, P(x) (H⁺, strong-ion
+//! excess when positive, every positively charged form) and N(x) (OH⁻, strong-ion deficit, every
+//! negatively charged form), at pH x. The root of f = P − N is the root of
+//! g(x) = ln P(x) − ln N(x). Where one species dominates each side, g is close to a straight
+//! line in x (a strong acid gives g = ln10·(pC − x) exactly), so Newton steps on g land near the
+//! root from far away, where Newton steps on f crawl at 0.43 pH per step. Near the root g is
+//! smooth and Halley's method (which also uses g″) converges cubically.
+//!
+//! Davies mode: the activity coefficients of an evaluation come from the ionic strength the
+//! previous evaluation predicted for this pH. Each evaluation also gives ∂g/∂(Davies factor) and
+//! dI/dpH, so the step solves the coupled system to first order: the step is taken on
+//! G(x) = g(x, F(I(x))) (F the Davies factor of an ionic strength) with its total derivative. An
+//! answer is accepted only where the coefficients an evaluation used reproduce themselves (the
+//! nested solve's own test), so the quick path changes how fast the answer is reached, not what it is.
+//!
+//! Every quantity comes out of one pass over the components with the same alpha fractions the
+//! rest of the solver uses; the only extra work per evaluation is a few multiply–adds per form.
+
+use super::activity;
+use super::solution::Solution;
+use super::solve::{Eval, PH_MAX, PH_MIN, alphas};
+use crate::real::Real;
+
+/// Most evaluations of the quick path; a solve it has not finished by then continues with the
+/// nested solve from the last point.
+pub const QUICK_ITERATIONS: u32 = 10;
+
+/// Largest pH step of one quick iteration.
+const MAX_STEP_PH: f64 = 4.0;
+
+/// `true` for a negative number (`false` for NaN as well as for ≥ 0).
+fn negative<R: Real>(v: R) -> bool {
+    v < R::ZERO
+}
+
+/// One evaluation of the log charge ratio and everything the quick step needs.
+#[derive(Clone, Copy, Debug)]
+pub(crate) struct LogEval<R> {
+    /// The plain evaluation (excess, buffer capacity, ionic strength).
+    pub eval: Eval<R>,
+    /// g = ln P − ln N.
+    pub g: R,
+    /// dg/dpH at fixed activity coefficients.
+    pub g1: R,
+    /// d²g/dpH² at fixed activity coefficients.
+    pub g2: R,
+    /// d³g/dpH³ at fixed activity coefficients.
+    pub g3: R,
+    /// ∂g/∂(Davies factor) at fixed pH.
+    pub g_af: R,
+    /// dI/dpH at fixed activity coefficients, mol/L per pH.
+    pub ionic_x: R,
+    /// ∂I/∂(Davies factor) at fixed pH, mol/L.
+    pub ionic_af: R,
+}
+
+/// Outcome of the quick path.
+pub(crate) enum Quick<R> {
+    /// Converged: pH, its evaluation, evaluations spent, the Davies factor it used.
+    Done(R, Eval<R>, u32, R),
+    /// Not settled: evaluations spent, the last pH and the last ionic strength (for the nested
+    /// solve to continue from).
+    Continue(u32, R, R),
+}
+
+impl<R: Real, const N: usize> Solution<R, N> {
+    /// The log charge ratio and its derivatives at pH `x` with Davies factor `af`.
+    pub(crate) fn evaluate_log(&self, x: R, af: R) -> LogEval<R> {
+        let ln10 = R::LN_10;
+        let ln10_2 = ln10 * ln10;
+        let h = (af - x).exp10();
+        let oh = (x - self.pkw() + af).exp10();
+        let q = self.strong_charge_eq_per_l();
+        // Positive side: value, d/dx, d²/dx², ∂/∂af; the same for the negative side.
+        let ln10_3 = ln10_2 * ln10;
+        let (mut p, mut p1, mut p2, mut p3, mut pa) = (h, -ln10 * h, ln10_2 * h, -ln10_3 * h, ln10 * h);
+        let (mut n, mut n1, mut n2, mut n3, mut na) = (oh, ln10 * oh, ln10_2 * oh, ln10_3 * oh, ln10 * oh);
+        if q > R::ZERO {
+            p += q;
+        } else {
+            n -= q;
+        }
+        let mut var_sum = h + oh;
+        let mut ionic2 = h + oh;
+        let mut ionic2_x = ln10 * (oh - h);
+        let mut ionic2_af = ln10 * (oh + h);
+        for c in self.components() {
+            let a = alphas(c, x, af);
+            let steps = c.system.step_count();
+            let z0 = c.system.charge_of_form(0);
+            let mut nbar = R::ZERO;
+            let mut mbar = R::ZERO;
+            for (j, aj) in (0_i32..).zip(a.iter()).take(steps + 1) {
+                nbar += R::from_i32(j) * *aj;
+                // ∂(log10 [A_j]/[A_0])/∂af = −Σ_{i≤j}(2·z_{i−1} − 1) = j·(j − 2·z0).
+                mbar += R::from_i32(j * (j - 2 * z0)) * *aj;
+            }
+            let (mut var, mut mu3) = (R::ZERO, R::ZERO);
+            for (j, aj) in (0_i32..).zip(a.iter()).take(steps + 1) {
+                let d = R::from_i32(j) - nbar;
+                var += d * d * *aj;
+                mu3 += d * d * d * *aj;
+            }
+            let three = R::from_f64(3.0);
+            let total = c.total_mol_per_l;
+            for (j, aj) in (0_i32..).zip(a.iter()).take(steps + 1) {
+                let z = z0 - j;
+                if z == 0 {
+                    continue;
+                }
+                let w = total * *aj;
+                let d = R::from_i32(j) - nbar;
+                let dm = R::from_i32(j * (j - 2 * z0)) - mbar;
+                let zr = R::from_i32(z.abs());
+                let (v, v1, v2, va) = (zr * w, zr * w * ln10 * d, zr * w * ln10_2 * (d * d - var), zr * w * ln10 * dm);
+                // α‴_j = α_j·ln10³·(d³ − 3·d·var − μ3).
+                let v3 = zr * w * ln10_3 * (d * d * d - three * d * var - mu3);
+                if z > 0 {
+                    p += v;
+                    p1 += v1;
+                    p2 += v2;
+                    p3 += v3;
+                    pa += va;
+                } else {
+                    n += v;
+                    n1 += v1;
+                    n2 += v2;
+                    n3 += v3;
+                    na += va;
+                }
+                let z2 = R::from_i32(z * z);
+                ionic2 += z2 * w;
+                ionic2_x += z2 * w * ln10 * d;
+                ionic2_af += z2 * w * ln10 * dm;
+            }
+            var_sum += total * var;
+        }
+        let half = R::from_f64(0.5);
+        let (two, three) = (R::from_f64(2.0), R::from_f64(3.0));
+        let (rp, rn) = (p1 / p, n1 / n);
+        LogEval {
+            eval: Eval {
+                excess: p - n,
+                beta: ln10 * var_sum,
+                ionic_strength: half * ionic2 + self.strong_ionic_strength_mol_per_l(),
+            },
+            // One logarithm of the ratio: near the root P/N ≈ 1 and ln(P/N) carries the ratio's
+            // rounding only, where ln P − ln N would add the rounding of two logarithms of size
+            // |ln P| (five times more noise in f32 at millimolar charges).
+            g: (p / n).ln(),
+            g1: rp - rn,
+            g2: p2 / p - rp * rp - n2 / n + rn * rn,
+            // d/dx (P″/P − (P′/P)²) = P‴/P − 3·P″P′/P² + 2·(P′/P)³.
+            g3: p3 / p - three * (p2 / p) * rp + two * rp * rp * rp
+                - (n3 / n - three * (n2 / n) * rn + two * rn * rn * rn),
+            g_af: pa / p - na / n,
+            ionic_x: half * ionic2_x,
+            ionic_af: half * ionic2_af,
+        }
+    }
+
+    /// A cold start without a charge-balance evaluation: the pH where the charges would
+    /// balance if every step were all-or-nothing at its pKa (a staircase in pH), refined by
+    /// Henderson–Hasselbalch on the step where the balance changes sign, or by water alone when
+    /// the root lies between steps. `af` is the Davies factor the step constants are corrected
+    /// with (0 in ideal mode). Cost: (steps in the solution)² comparisons (≤ 576 for eight
+    /// triprotic systems) and at most two logarithms.
+    pub(crate) fn cold_start_ph(&self, af: R) -> R {
+        let lo = R::from_f64(PH_MIN + 1.0);
+        let hi = R::from_f64(PH_MAX - 1.0);
+        let tiny = R::from_f64(1e-300_f64.max(f64::from(f32::MIN_POSITIVE)));
+        // Below every step: all systems fully protonated.
+        let mut s_low = self.strong_charge_eq_per_l();
+        for c in self.components() {
+            s_low += c.total_mol_per_l * R::from_i32(c.system.charge_of_form(0));
+        }
+        // Effective breakpoint of step j (1-based) of component c.
+        let point = |c: &super::solution::Component<R>, j: usize| -> R {
+            let z_prev = c.system.charge_of_form(j - 1);
+            crate::invariant::at(&c.pk, j - 1) + af * R::from_i32(2 * z_prev - 1)
+        };
+        // The step where S(b−) > 0 ≥ S(b+): S(b−) = s_low − Σ_{p < b} C, S(b+) = S(b−) − Σ_{p = b} C.
+        let mut best: Option<(R, R, R)> = None; // (b, S(b−), S(b+))
+        let mut s_high = s_low;
+        for c in self.components() {
+            for j in 1..=c.system.step_count() {
+                let b = point(c, j);
+                s_high -= c.total_mol_per_l;
+                let (mut below, mut at) = (R::ZERO, R::ZERO);
+                for d in self.components() {
+                    for k in 1..=d.system.step_count() {
+                        let p = point(d, k);
+                        if p < b {
+                            below += d.total_mol_per_l;
+                        } else if p == b {
+                            at += d.total_mol_per_l;
+                        }
+                    }
+                }
+                let (before, after) = (s_low - below, s_low - below - at);
+                if before > R::ZERO && after <= R::ZERO {
+                    best = Some((b, before, after));
+                }
+            }
+        }
+        let pkw = self.pkw();
+        let x = match best {
+            // Every step is passed with charge to spare: the root is where OH⁻ takes it up.
+            None if s_high > R::ZERO => pkw + s_high.max(tiny).log10() - af,
+            // Every step leaves a deficit: H⁺ makes it up.
+            None if s_low < R::ZERO => af - (-s_low).max(tiny).log10(),
+            None => R::from_f64(7.0),
+            Some((b, before, after)) => {
+                let water_left = pkw + before.max(tiny).log10() - af;
+                let water_right = af - (-after).max(tiny).log10();
+                if water_left < b {
+                    water_left
+                } else if after < R::ZERO && water_right > b {
+                    water_right
+                } else {
+                    // Henderson–Hasselbalch on this step: the deprotonated fraction it needs.
+                    let frac = (before / (before - after)).max(R::from_f64(1e-3)).min(R::from_f64(1.0 - 1e-3));
+                    b + (frac / (R::ONE - frac)).log10()
+                }
+            }
+        };
+        if x.is_finite() { x.max(lo).min(hi) } else { R::from_f64(7.0) }
+    }
+
+    /// The quick path from pH `start`. `ionic` is the ionic strength whose activity
+    /// coefficients the first evaluation uses (Davies mode; ignored in ideal mode). At most
+    /// `limit.min(QUICK_ITERATIONS)` evaluations.
+    ///
+    /// Davies mode solves two equations together, g(x, φ) = 0 and F(I(x, φ)) − φ = 0 (φ the
+    /// Davies factor, F the Davies function), by Newton's method on both, with Halley's
+    /// correction on the pH equation.
+    pub(crate) fn quick_solve(&self, start: R, ionic: R, limit: u32) -> Quick<R> {
+        let davies = self.activity() == super::activity::Activity::Davies;
+        let a = self.debye_huckel_a();
+        let max_ionic = R::from_f64(activity::DAVIES_MAX_IONIC_STRENGTH);
+        let clamp_i = |i: R| i.max(R::ZERO).min(max_ionic);
+        let (lo0, hi0) = (R::from_f64(PH_MIN), R::from_f64(PH_MAX));
+        let (mut lo, mut hi) = (lo0, hi0);
+        let edge = R::from_f64(1e3) * R::PH_TOLERANCE;
+        let tol = R::PH_TOLERANCE;
+        let max_step = R::from_f64(MAX_STEP_PH);
+        let half = R::from_f64(0.5);
+        let mut x = start.max(lo0).min(hi0);
+        let mut af = if davies { activity::davies_factor(a, clamp_i(ionic)) } else { R::ZERO };
+        let mut last_ionic = ionic;
+        let mut previous_step: Option<R> = None;
+        let mut spent = 0_u32;
+        while spent < limit.min(QUICK_ITERATIONS) {
+            spent += 1;
+            let e = self.evaluate_log(x, af);
+            let finite = e.g.is_finite()
+                && e.g1.is_finite()
+                && e.g2.is_finite()
+                && e.g3.is_finite()
+                && e.g_af.is_finite()
+                && e.ionic_x.is_finite()
+                && e.ionic_af.is_finite()
+                && e.eval.beta.is_finite()
+                && e.eval.excess.is_finite()
+                && e.eval.ionic_strength.is_finite();
+            if !finite || !negative(e.g1) {
+                break;
+            }
+            let ionic_here = e.eval.ionic_strength;
+            last_ionic = ionic_here;
+            // The Davies equation's residual r = F(I) − φ and its derivatives: dr/dx = C,
+            // dr/dφ = D (F′·∂I/∂φ − 1, close to −1).
+            let (r, c, d, consistent) = if davies {
+                let i = clamp_i(ionic_here);
+                let slope = activity::davies_factor_slope(a, i);
+                let r = activity::davies_factor(a, i) - af;
+                // The nested solve's test: φ reproduces itself to a tenth of the pH tolerance,
+                // or the ionic strength it stands for (I − r/F′) matches I relatively.
+                let tol_i = R::IONIC_STRENGTH_TOLERANCE * ionic_here.max(R::from_f64(1e-12));
+                let consistent = r.abs() <= R::from_f64(0.1) * tol || (slope > R::ZERO && r.abs() <= tol_i * slope);
+                (r, slope * e.ionic_x, slope * e.ionic_af - R::ONE, consistent)
+            } else {
+                (R::ZERO, R::ZERO, -R::ONE, true)
+            };
+            if !negative(d) {
+                break;
+            }
+            // Eliminate dφ = −(r + C·dx)/D: the pH equation becomes G + G′·dx = 0.
+            let big_g = e.g - e.g_af * r / d;
+            let big_g1 = e.g1 - e.g_af * c / d;
+            if !negative(big_g1) {
+                break;
+            }
+            let newton = -big_g / big_g1;
+            // Bracket: in ideal mode the sign of g is the sign of the charge excess (the nested
+            // solve trusts it the same way). In Davies mode G corrects the activity
+            // coefficients to first order only, so its sign is trusted only where that
+            // correction is under a tenth of G; a wrong bracket would hold the iteration away
+            // from the root (a state the quick path accepts is a true root either way).
+            if !davies || (big_g - e.g).abs() <= R::from_f64(0.1) * big_g.abs() {
+                if big_g > R::ZERO {
+                    lo = lo.max(x);
+                } else if big_g < R::ZERO {
+                    hi = hi.min(x);
+                }
+            }
+            // Halley's correction: t = G·g″/(2·G′²). For t ≤ ½ it damps (t < 0) or lengthens
+            // the step moderately; beyond, plain Newton.
+            let t = big_g * e.g2 / (R::from_f64(2.0) * big_g1 * big_g1);
+            // Near the root, Householder's third-order step (quartic convergence, uses g‴).
+            let cube = big_g1 * big_g1 * big_g1;
+            let six = R::from_f64(6.0);
+            let den = six * cube - six * big_g * big_g1 * e.g2 + big_g * big_g * e.g3;
+            let step = if t.abs() <= R::from_f64(0.1) && den / cube > half {
+                -(six * big_g * big_g1 * big_g1 - R::from_f64(3.0) * big_g * big_g * e.g2) / den
+            } else if t <= half {
+                newton / (R::ONE - t)
+            } else {
+                newton
+            };
+            // Converged: the step is within the tolerance, or (ideal mode, where rounding of the
+            // charge sum can make the step flip back and forth just above the tolerance) the
+            // bracket is narrower than the tolerance.
+            // A bracket narrower than what the working precision can resolve (f32 on a flat
+            // stretch of the curve, where the charge sum's rounding moved along the curve by the
+            // buffer capacity exceeds the tolerance) and than ten tolerances is as converged as
+            // the arithmetic allows (the answer is then within ten tolerances plus the resolution,
+            // the README's rule for f32); `Equilibrium::resolution_limited` then says so.
+            let width = hi - lo;
+            let resolved = width <= R::from_f64(10.0) * tol && width <= self.resolution(x, af, e.eval.beta);
+            if (step.abs() <= tol || width <= tol || resolved) && consistent {
+                if ionic_here > max_ionic || x <= lo0 + edge || x >= hi0 - edge {
+                    break;
+                }
+                return Quick::Done(x, e.eval, spent, af);
+            }
+            // At the rounding floor: steps of a few tolerances that flip sign without
+            // shrinking. Bisect the bracket when there is one; else the nested solve, with its
+            // own bracket, finishes from here.
+            let floor = step.abs() <= R::from_f64(100.0) * tol;
+            let stalled = floor
+                && previous_step.is_some_and(|p: R| (p > R::ZERO) != (step > R::ZERO) && step.abs() > half * p.abs());
+            previous_step = Some(step);
+            if stalled {
+                if lo > lo0 && hi < hi0 && x >= lo && x <= hi {
+                    x = (lo + hi) * half;
+                    previous_step = None;
+                    continue;
+                }
+                break;
+            }
+            let bounded = step.max(-max_step).min(max_step);
+            let mut next = x + bounded;
+            if bounded.abs() > tol && !(next > lo && next < hi) {
+                next = (lo + hi) * half;
+            }
+            if davies {
+                let d_af = -(r + c * (next - x)) / d;
+                af = (af + d_af).max(R::ZERO);
+            }
+            x = next;
+        }
+        Quick::Continue(spent, x, last_ionic)
+    }
+}
