@@ -719,9 +719,9 @@ fn phosphate_buffer_follows_the_iupac_temperature_table() {
     // Catalogue PHOSPHATE (step 2: Millero & Pierrot's refit of Bates & Acree 1943). Measured:
     // +0.012 to +0.019, worst +0.0186 at 0 °C; the goal is met from 15 to 50 °C only. The deviation
     // is a near-constant offset (spread 0.0065 over 0–50 °C), +0.013 already at 25 °C where pK2 is
-    // not in question (7.200; Goldberg et al. 2002 select 7.198): the Davies activity coefficient of
-    // HPO4²⁻ at I = 0.1 against the Bates–Guggenheim convention of the table, not the temperature
-    // function. Known miss, guard 0.020.
+    // not in question (7.200; Goldberg et al. 2002 select 7.198): most likely the Davies activity
+    // coefficient of HPO4²⁻ at I = 0.1 against the Bates–Guggenheim convention of the table, not
+    // the temperature function. Known miss, guard 0.020.
     let rows = check_buffer("phosphate 0.025/0.025", 2, |t| buffer_ph(t, PHOSPHATE_1_1), 15.0, 50.0, 0.020);
     let (min, max) = rows.iter().fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), &(_, d)| (lo.min(d), hi.max(d)));
     println!("phosphate 0.025/0.025: deviation spread {:.4}", max - min);
@@ -733,8 +733,8 @@ fn borax_buffer_follows_the_iupac_temperature_table() {
     // Catalogue BORATE (Manov, DeLollis & Acree 1944; Dickson 1990 agrees within 0.004, so the
     // constant is not the question). Measured: −0.0225 at 0 °C shrinking to +0.001 at 50 °C; the goal
     // is met from 10 to 50 °C. 0.01 mol/kg borax is 0.04 mol/kg boron, where polyborate ions form
-    // (more so in the cold); the catalogue has one boron per system and cannot carry them. Known
-    // miss, guard 0.024.
+    // (more so in the cold, which is the likely cause); the catalogue has one boron per system and
+    // cannot carry them. Known miss, guard 0.024.
     check_buffer("borax 0.01", 3, |t| buffer_ph(t, BORAX), 10.0, 50.0, 0.024);
 }
 
