@@ -283,11 +283,14 @@ fn f32_plan_converges_where_f64_does() {
     assert!((ph - setpoint).abs() <= bound, "f32 flow {q32} (f64 {q64}) gives pH {ph}, bound {bound}");
 }
 
-/// Differential fuzz finding: a salty citrate–ammonium buffer at 99.9 °C (pH 3.536), 0.01 L/h,
-/// dosed with 1 mM HCl (own pH about 3.0) toward pH 3.557. With activity coefficients the
-/// first drops dilute the buffer and raise its pH before the acid takes over, so the setpoint
-/// above the influent is crossed on the way (near 0.0075 L/h). Was refused as the wrong
-/// direction; the smallest dose reaching it is planned.
+/// Differential fuzz finding: a salty citrate–ammonium buffer at 99.9 °C, 0.01 L/h, dosed with
+/// 1 mM HCl (own pH about 3.0) toward a setpoint just above the influent. With activity
+/// coefficients the first drops dilute the buffer and raise its pH before the acid takes over, so
+/// the setpoint above the influent is crossed on the way (near 0.0075 L/h). Was refused as the
+/// wrong direction; the smallest dose reaching it is planned. (Found with pH 3.536 and setpoint
+/// 3.557 under the former constant-ΔH° citrate constants; with Goldberg et al.'s ΔCp° the same
+/// water is at pH 3.725, rises to about 3.83 near 0.1 L/h and falls after, so the setpoint is
+/// the pH at 0.0075 L/h, 3.7457.)
 #[test]
 fn a_setpoint_reached_by_dilution_is_planned() {
     let mut buffer: Solution<f64, 8> = davies(99.91302357518883);
@@ -298,7 +301,7 @@ fn a_setpoint_reached_by_dilution_is_planned() {
     }
     let mut acid: Solution<f64, 1> = davies(99.91302357518883);
     acid.add_formula("HCl", 0.001).unwrap();
-    let q = plan_reaches(&buffer, 0.01, &acid, 3.556664377813382, 1e-6);
+    let q = plan_reaches(&buffer, 0.01, &acid, 3.7457, 1e-6);
     // The smaller of the two crossings: the pH rises until about 0.01 L/h of acid.
     assert!(q > 0.005 && q < 0.01, "{q}");
 }

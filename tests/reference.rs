@@ -263,13 +263,315 @@ fn openstax_strong_acid_strong_base_titration_points() {
 }
 
 // ---------------------------------------------------------------------------------------------
-// b., c. Standard buffers (catalogue constants, Davies activities).
+// b. Catalogue pK(T) against independent published functions and values.
+// ---------------------------------------------------------------------------------------------
+
+/// pK of `step` of `system` at `celsius`, read the way the solver reads it (the solution's
+/// cached constant).
+fn catalogue_pk(system: &'static AcidBaseSystem, step: usize, celsius: f64) -> f64 {
+    let mut s: Solution<f64, 4> = Solution::new(Celsius::new(celsius).unwrap(), Activity::Ideal);
+    s.add_system(system, 1e-3).unwrap();
+    s.component_pka(0, step).unwrap()
+}
+
+/// Gas constant used to evaluate Goldberg et al.'s constant-ΔCp form, J/(K·mol) (CODATA 2018; the
+/// review itself used 8.31451, which changes these pK values by < 1e-5).
+const R: f64 = 8.314_462_618;
+
+/// pK(T) from Goldberg, Kishore & Lennen (2002), J. Phys. Chem. Ref. Data 31, 231: their selected
+/// pK, ΔH° (kJ/mol) and ΔCp° (J/(K·mol)) at 298.15 K in the integrated van 't Hoff equation with a
+/// constant ΔCp° (their form). Written out here independently of the crate's `clarke_glew`.
+fn goldberg(pk_25: f64, dh_kj: f64, dcp: f64, kelvin: f64) -> f64 {
+    let theta = 298.15;
+    pk_25
+        + ((dh_kj * 1000.0 - dcp * theta) * (1.0 / kelvin - 1.0 / theta) - dcp * (kelvin / theta).ln())
+            / (R * std::f64::consts::LN_10)
+}
+
+/// pK from a natural-log fit ln K = a + b/T + c·ln T + d·T (the form of Millero & Pierrot 1998 and
+/// Millero 2007, Table 11).
+fn pk_from_ln_k(a: f64, b: f64, c: f64, d: f64, kelvin: f64) -> f64 {
+    -(a + b / kelvin + c * kelvin.ln() + d * kelvin) / std::f64::consts::LN_10
+}
+
+/// One check: a catalogue step against a published function or value that is not the one the
+/// catalogue carries, at the temperatures the reference covers.
+struct PkCheck {
+    key: &'static str,
+    step: usize,
+    /// The reference and where it was read.
+    source: &'static str,
+    /// Temperatures, °C: the reference's own range, in 5 °C steps.
+    celsius: &'static [f64],
+    /// The reference pK at a temperature in kelvin.
+    reference: fn(f64) -> f64,
+    /// Bound on |catalogue − reference|: 0.005 in pK unless the comment beside the row says why the
+    /// sources' scatter is larger.
+    tol: f64,
+}
+
+const T_0_60: &[f64] = &[0.0, 5.0, 10.0, 15.0, 20.0, 25.0, 30.0, 35.0, 40.0, 45.0, 50.0, 55.0, 60.0];
+const T_0_50: &[f64] = &[0.0, 5.0, 10.0, 15.0, 20.0, 25.0, 30.0, 35.0, 40.0, 45.0, 50.0];
+const T_0_45: &[f64] = &[0.0, 5.0, 10.0, 15.0, 20.0, 25.0, 30.0, 35.0, 40.0, 45.0];
+const T_0_35: &[f64] = &[0.0, 5.0, 10.0, 15.0, 20.0, 25.0, 30.0, 35.0];
+
+/// The published measurement tables themselves (NBS cell papers of the 1930s–50s) could not be read
+/// here; every reference below is a published function of temperature or a published value, read in
+/// the source named beside it, and evaluated at the reference's own temperatures.
+const PK_CHECKS: &[PkCheck] = &[
+    // Carbonate K1: Harned & Davis (1943), J. Am. Chem. Soc. 65, 2030 — their fit to their own
+    // cells, 0–50 °C: pK1 = 3404.71/T − 14.8435 + 0.032786·T (checked, as transcribed in several
+    // CO2SYS-family and carbonate codes). Catalogue: Plummer & Busenberg 1982.
+    PkCheck {
+        key: "carbonate",
+        step: 1,
+        source: "Harned & Davis 1943",
+        celsius: T_0_50,
+        reference: |t| 3404.71 / t - 14.8435 + 0.032_786 * t,
+        tol: 0.005,
+    },
+    // Carbonate K2: Harned & Scholes (1941), J. Am. Chem. Soc. 63, 1706 (CO2SYS's comment prints
+    // the volume as 43) — their fit, 0–50 °C: pK2 = 2902.39/T − 6.4980 + 0.02379·T (checked, as
+    // above).
+    PkCheck {
+        key: "carbonate",
+        step: 2,
+        source: "Harned & Scholes 1941",
+        celsius: T_0_50,
+        reference: |t| 2902.39 / t - 6.4980 + 0.023_79 * t,
+        tol: 0.005,
+    },
+    // Phosphate K1: Millero & Pierrot (1998), Aquat. Geochem. 4, 153, refit of Bates's (1951) cells:
+    // ln K1 = 115.54 − 4576.7518/T − 18.453·ln T (checked, as transcribed in Pytzer,
+    // pytzer/dissociation.py H3PO4_MP98, and in the MyAMI code). Catalogue: Bates 1951 (from memory).
+    PkCheck {
+        key: "phosphate",
+        step: 1,
+        source: "Millero & Pierrot 1998 (Bates 1951 cells)",
+        celsius: T_0_60,
+        reference: |t| pk_from_ln_k(115.54, -4576.7518, -18.453, 0.0, t),
+        tol: 0.005,
+    },
+    // Phosphate K2: Goldberg et al. (2002), Section 8: pK 7.198, ΔH° 3.6 kJ/mol, ΔCp° −230 J/(K·mol)
+    // (checked, via a public transcription). Catalogue: Millero & Pierrot's refit of Bates & Acree
+    // (1943). The two evaluations of the same cells differ by up to 0.011 (at 0 °C: 7.303 against
+    // 7.313), which is the bound here.
+    PkCheck {
+        key: "phosphate",
+        step: 2,
+        source: "Goldberg et al. 2002",
+        celsius: T_0_60,
+        reference: |t| goldberg(7.198, 3.6, -230.0, t),
+        tol: 0.011,
+    },
+    // Phosphate K3: PHREEQC's phreeqc.dat / wateq4f.dat, PO4-3 + H+ = HPO4-2, log K 12.346,
+    // ΔH° −3.530 kcal/mol (checked): van 't Hoff, 14.770 kJ/mol for the dissociation. Catalogue:
+    // Benjamin 2015, 12.35 and 14.7 kJ/mol (van 't Hoff), printed to two decimals (±0.005), which
+    // with the 0.004 offset at 25 °C makes the bound 0.006.
+    PkCheck {
+        key: "phosphate",
+        step: 3,
+        source: "phreeqc.dat / wateq4f.dat",
+        celsius: T_0_60,
+        reference: |t| goldberg(12.346, 3.530 * 4.184, 0.0, t),
+        tol: 0.006,
+    },
+    // Acetic acid: Goldberg et al. (2002), Section 8: pK 4.756, ΔH° −0.41 kJ/mol, ΔCp° −142 J/(K·mol)
+    // (checked, via a public transcription). Catalogue: Harned & Ehlers 1933 (from memory).
+    PkCheck {
+        key: "acetate",
+        step: 1,
+        source: "Goldberg et al. 2002",
+        celsius: T_0_60,
+        reference: |t| goldberg(4.756, -0.41, -142.0, t),
+        tol: 0.005,
+    },
+    // Ammonium: Millero & Pierrot (1998) refit of Bates & Pinching's (1949) cells:
+    // ln K = −0.25444 − 6285.33/T + 0.0001635·T (checked, as transcribed in Pytzer, NH4_MP98, and
+    // MyAMI). Catalogue: Bates & Pinching's own function. Within 0.005 over the cells' 0–50 °C; the
+    // two fits part by 0.008 at 60 °C, so the bound is 0.009.
+    PkCheck {
+        key: "ammonium",
+        step: 1,
+        source: "Millero & Pierrot 1998 (Bates & Pinching 1949 cells)",
+        celsius: T_0_60,
+        reference: |t| pk_from_ln_k(-0.25444, -6285.33, 0.0, 0.000_163_5, t),
+        tol: 0.009,
+    },
+    // Ammonium: Goldberg et al. (2002): 9.245, 51.95 kJ/mol, 8 J/(K·mol) (checked, via a public
+    // transcription). Parts from Bates & Pinching by 0.008 at 0 °C: bound 0.009.
+    PkCheck {
+        key: "ammonium",
+        step: 1,
+        source: "Goldberg et al. 2002",
+        celsius: T_0_60,
+        reference: |t| goldberg(9.245, 51.95, 8.0, t),
+        tol: 0.009,
+    },
+    // Boric acid: ln K = 148.0248 − 8966.901/T − 24.4344·ln T, Millero & Pierrot (1998) "following
+    // Millero (1979)" (checked, as transcribed in Pytzer, BOH3_M79); the S = 0 terms of Dickson's
+    // (1990) function for his cells at 273–318 K (attribution from memory), so 0–45 °C here.
+    // Catalogue: Manov, DeLollis & Acree 1944.
+    PkCheck {
+        key: "borate",
+        step: 1,
+        source: "Millero 1979 / Dickson 1990 (S = 0)",
+        celsius: T_0_45,
+        reference: |t| pk_from_ln_k(148.0248, -8966.901, -24.4344, 0.0, t),
+        tol: 0.005,
+    },
+    // Boric acid: Goldberg et al. (2002): 9.237, 13.8 kJ/mol, −240 J/(K·mol) (checked, via a public
+    // transcription). Their ΔCp° bends more than Manov's cells (about −190 J/(K·mol) implied): the
+    // two part by 0.020 at 60 °C, so the bound is 0.021.
+    PkCheck {
+        key: "borate",
+        step: 1,
+        source: "Goldberg et al. 2002",
+        celsius: T_0_60,
+        reference: |t| goldberg(9.237, 13.8, -240.0, t),
+        tol: 0.021,
+    },
+    // HSO4⁻: Clegg, Rard & Pitzer (1994) eq. 21 with its T² term (checked, as transcribed in Pytzer,
+    // HSO4_CRP94). The catalogue carries the same equation with the T² term re-expressed
+    // (tools/reference/hso4_logk_basis.py): this row checks that re-expression, to 1e-4.
+    PkCheck {
+        key: "sulfate",
+        step: 1,
+        source: "Clegg, Rard & Pitzer 1994 eq. 21",
+        celsius: T_0_60,
+        reference: |t| -(562.694_86 - 102.5154 * t.ln() - 1.117_033e-4 * t * t + 0.247_753_8 * t - 13_273.75 / t),
+        tol: 1e-4,
+    },
+    // HSO4⁻ at 25 °C: Benjamin, "Water Chemistry", 2nd ed. (2015), pKa 1.99 (checked, via a public
+    // transcription), and PHREEQC's phreeqc.dat / wateq4f.dat, log K 1.988 (checked). CRP94 gives
+    // 1.979: the compilations scatter by 0.011, the bound here.
+    PkCheck {
+        key: "sulfate",
+        step: 1,
+        source: "Benjamin 2015 (25 °C)",
+        celsius: &[25.0],
+        reference: |_| 1.99,
+        tol: 0.012,
+    },
+    PkCheck {
+        key: "sulfate",
+        step: 1,
+        source: "phreeqc.dat / wateq4f.dat (25 °C)",
+        celsius: &[25.0],
+        reference: |_| 1.988,
+        tol: 0.012,
+    },
+    // HF: the `-analytic` of phreeqc.dat / wateq4f.dat for H+ + F- = HF: log K = −2.033 + 0.012645·T
+    // + 429.01/T (checked; its origin is not stated in the file). Catalogue: Dickson & Riley 1979,
+    // a straight van 't Hoff line. They agree at 25 °C (3.176 / 3.174) and part by 0.030 at 0 °C and
+    // 0.050 at 60 °C: the published temperature dependence of HF is that uncertain. Bound 0.055.
+    PkCheck {
+        key: "fluoride",
+        step: 1,
+        source: "phreeqc.dat / wateq4f.dat -analytic",
+        celsius: T_0_60,
+        reference: |t| -2.033 + 0.012_645 * t + 429.01 / t,
+        tol: 0.055,
+    },
+    // H2S: the `-analytic` of phreeqc.dat / wateq4f.dat for HS- + H+ = H2S: log K = −11.17 +
+    // 0.02386·T + 3279.0/T (checked; origin not stated; note that it gives 6.942 at 25 °C while the
+    // same entry's log_k is 6.994). Catalogue: Millero 1988. They part by 0.081 at 0 °C and 0.038 at
+    // 25 °C: bound 0.085. The catalogue's value is the better documented one, not a settled one.
+    PkCheck {
+        key: "sulfide",
+        step: 1,
+        source: "phreeqc.dat / wateq4f.dat -analytic",
+        celsius: T_0_60,
+        reference: |t| -11.17 + 0.023_86 * t + 3279.0 / t,
+        tol: 0.085,
+    },
+    // Si(OH)4: the `-analytic` of phreeqc.dat / wateq4f.dat for H4SiO4 = H3SiO4- + H+ (checked).
+    // Catalogue: Millero 1995.
+    PkCheck {
+        key: "silicate",
+        step: 1,
+        source: "phreeqc.dat / wateq4f.dat -analytic",
+        celsius: T_0_60,
+        reference: |t| -(-302.3724 - 0.050_698 * t + 15_669.69 / t + 108.184_66 * t.log10() - 1_119_669.0 / (t * t)),
+        tol: 0.005,
+    },
+    // Citric acid: Goldberg et al. (2002), Section 8 (checked, via a public transcription), evaluated
+    // here with the formula written out in `goldberg`. The catalogue carries the same three numbers:
+    // this checks the transcription and the crate's `clarke_glew` (to 1e-6), not the data; no second
+    // temperature table for citric acid was found.
+    PkCheck {
+        key: "citrate",
+        step: 1,
+        source: "Goldberg et al. 2002 (same data)",
+        celsius: T_0_60,
+        reference: |t| goldberg(3.128, 4.07, -131.0, t),
+        tol: 1e-6,
+    },
+    PkCheck {
+        key: "citrate",
+        step: 2,
+        source: "Goldberg et al. 2002 (same data)",
+        celsius: T_0_60,
+        reference: |t| goldberg(4.761, 2.23, -178.0, t),
+        tol: 1e-6,
+    },
+    PkCheck {
+        key: "citrate",
+        step: 3,
+        source: "Goldberg et al. 2002 (same data)",
+        celsius: T_0_60,
+        reference: |t| goldberg(6.396, -3.38, -254.0, t),
+        tol: 1e-6,
+    },
+    // HOCl: Morris (1966), J. Phys. Chem. 70, 3798, pKa = 3000/T − 10.0686 + 0.0253·T (checked),
+    // over his 0–35 °C (range from memory). The catalogue carries the same formula: a transcription
+    // check; no second table was found.
+    PkCheck {
+        key: "hypochlorite",
+        step: 1,
+        source: "Morris 1966 (same formula)",
+        celsius: T_0_35,
+        reference: |t| 3000.0 / t - 10.0686 + 0.0253 * t,
+        tol: 1e-9,
+    },
+];
+
+#[test]
+fn catalogue_pk_agrees_with_independent_published_functions() {
+    let mut failures = Vec::new();
+    for check in PK_CHECKS {
+        let system = phdose::chem::catalogue::by_key(check.key).unwrap();
+        let mut worst = 0.0_f64;
+        for &celsius in check.celsius {
+            let got = catalogue_pk(system, check.step, celsius);
+            let reference = (check.reference)(celsius + 273.15);
+            let d = got - reference;
+            println!(
+                "{} pK{} {celsius:>4} °C: catalogue {got:.4}, {} {reference:.4}, deviation {d:+.4}",
+                check.key, check.step, check.source
+            );
+            worst = worst.max(d.abs());
+        }
+        println!(
+            "== {} pK{} vs {}: worst |deviation| {worst:.4} (bound {})",
+            check.key, check.step, check.source, check.tol
+        );
+        if worst > check.tol {
+            failures.push(format!("{} pK{} vs {}: {worst} > {}", check.key, check.step, check.source, check.tol));
+        }
+    }
+    assert!(failures.is_empty(), "{failures:#?}");
+}
+
+// ---------------------------------------------------------------------------------------------
+// c. Standard buffers (catalogue constants, Davies activities).
 // ---------------------------------------------------------------------------------------------
 
 /// Tolerance for the standard buffers at 25 °C with Davies activities.
 const TOL_BUFFER_25C: f64 = 0.02;
-/// Tolerance for the carbonate buffer over 0–50 °C (measured worst case 0.0093, at 25 °C).
-const TOL_CARBONATE_T: f64 = 0.015;
+/// The goal for a standard buffer over 0–50 °C with Davies activities: the Bates–Guggenheim
+/// convention behind the IUPAC values and Davies differ by about this much at I ≈ 0.1.
+const TOL_BUFFER_T: f64 = 0.015;
 
 /// pH (activity scale) of a buffer given in mol/kg. The molal amounts are turned into mol/L
 /// with the density of pure water (the solutes' own volume changes c by < 0.3 % here, which
@@ -284,10 +586,39 @@ fn buffer_ph(celsius: f64, recipe: &[(&str, f64)]) -> f64 {
     s.solve().unwrap().ph
 }
 
+/// Potassium tetroxalate KH3(C2O4)2 at `mol_per_kg`: two oxalic acids and one K⁺ per formula unit
+/// (the K⁺ taking the place of one proton, as KOH would).
+fn tetroxalate_ph(celsius: f64, mol_per_kg: f64) -> f64 {
+    let t = Celsius::new(celsius).unwrap();
+    let rho = density_kg_per_l(t);
+    let mut s: Solution<f64, 4> = Solution::new(t, Activity::Davies);
+    s.add_formula("H2C2O4", 2.0 * mol_per_kg * rho).unwrap();
+    s.add_formula("KOH", mol_per_kg * rho).unwrap();
+    s.solve().unwrap().ph
+}
+
 const PHOSPHATE_1_1: &[(&str, f64)] = &[("KH2PO4", 0.025), ("Na2HPO4", 0.025)];
 const BORAX: &[(&str, f64)] = &[("Na2B4O7", 0.01)];
 const CARBONATE_1_1: &[(&str, f64)] = &[("NaHCO3", 0.025), ("Na2CO3", 0.025)];
 const KHP: &[(&str, f64)] = &[("KHC8H4O4", 0.05)];
+
+/// pH(S) at 0–50 °C: Buck et al. 2002, Pure Appl. Chem. 74, 2169 (IUPAC Recommendations 2002; the
+/// NIST values; the numbers read through an independent open-source transcription of the table,
+/// the same as `phdose::probe::buffers::TABLE`). Columns: tetroxalate 0.05 mol/kg, KH phthalate
+/// 0.05, phosphate 0.025/0.025, borax 0.01, carbonate 0.025/0.025.
+const IUPAC_TABLE: [(f64, [f64; 5]); 11] = [
+    (0.0, [1.666, 4.000, 6.984, 9.464, 10.317]),
+    (5.0, [1.668, 3.998, 6.951, 9.395, 10.245]),
+    (10.0, [1.670, 3.997, 6.923, 9.332, 10.179]),
+    (15.0, [1.672, 3.998, 6.900, 9.276, 10.118]),
+    (20.0, [1.675, 4.001, 6.881, 9.225, 10.062]),
+    (25.0, [1.679, 4.005, 6.865, 9.180, 10.012]),
+    (30.0, [1.683, 4.011, 6.853, 9.139, 9.966]),
+    (35.0, [1.688, 4.018, 6.844, 9.102, 9.925]),
+    (40.0, [1.694, 4.027, 6.838, 9.068, 9.889]),
+    (45.0, [1.700, 4.038, 6.834, 9.038, 9.857]),
+    (50.0, [1.707, 4.050, 6.833, 9.010, 9.828]),
+];
 
 #[test]
 fn iupac_standard_buffers_at_25c() {
@@ -313,32 +644,21 @@ fn iupac_standard_buffers_at_25c() {
     assert_eq!(failures, 0, "a standard buffer is off by more than {TOL_BUFFER_25C}");
 }
 
-#[test]
-fn carbonate_buffer_follows_the_iupac_temperature_table() {
-    // 0.025/0.025 mol/kg NaHCO3/Na2CO3, pH(S) at 0–50 °C: Buck et al. 2002 (IUPAC; numbers read
-    // through an independent open-source transcription of the table). Model constants: Plummer & Busenberg 1982 (catalogue CARBONATE).
-    let table = [
-        (0.0, 10.317),
-        (5.0, 10.245),
-        (10.0, 10.179),
-        (15.0, 10.118),
-        (20.0, 10.062),
-        (25.0, 10.012),
-        (30.0, 9.966),
-        (35.0, 9.925),
-        (40.0, 9.889),
-        (45.0, 9.857),
-        (50.0, 9.828),
-    ];
+/// The model's pH minus the IUPAC table over 0–50 °C for column `column`; prints every row and
+/// returns (worst |deviation|, the deviations).
+fn buffer_deviation_over_table(name: &str, column: usize, model: impl Fn(f64) -> f64) -> (f64, Vec<(f64, f64)>) {
     let mut worst = 0.0_f64;
-    for (t, ph_s) in table {
-        let got = buffer_ph(t, CARBONATE_1_1);
+    let mut rows = Vec::new();
+    for (t, row) in IUPAC_TABLE {
+        let ph_s = row[column];
+        let got = model(t);
         let d = got - ph_s;
-        println!("carbonate buffer {t:>4} °C: model {got:.4}, IUPAC {ph_s}, deviation {d:+.4}");
+        println!("{name} {t:>4} °C: model {got:.4}, IUPAC {ph_s}, deviation {d:+.4}");
         worst = worst.max(d.abs());
-        assert!(d.abs() <= TOL_CARBONATE_T, "carbonate buffer at {t} °C: {got} vs {ph_s}");
+        rows.push((t, d));
     }
-    println!("carbonate buffer 0–50 °C: worst |deviation| {worst:.4}");
+    println!("== {name} 0–50 °C: worst |deviation| {worst:.4} (goal {TOL_BUFFER_T})");
+    (worst, rows)
 }
 
 #[test]
@@ -346,12 +666,12 @@ fn khp_follows_hamer_pinching_acree_formula() {
     // Hamer, Pinching & Acree 1946, J. Res. NBS 36, 47 (RP1690): 0.05 mol/kg KHP,
     // pH = 1336.08/T − 5.2678 + 0.016069·T with T = t + 273.16, valid 0–60 °C.
     //
-    // The catalogue's phthalate constants use constant-ΔH° van 't Hoff (pK and ΔH° from memory
-    // of Hamer et al. / Goldberg et al. 2002). The measured KHP pH has a minimum near 15 °C — a
-    // heat-capacity term the van 't Hoff form cannot carry — so the model drifts away at the
-    // ends of the range: measured deviation −0.033 at 0 °C, +0.008 at 25 °C, −0.022 at 50 °C,
-    // −0.050 at 60 °C. This test holds the 10–40 °C band to 0.015 and the whole 0–60 °C range
-    // to 0.06 (the measured worst case plus 0.01), so a regression in either shows up.
+    // The catalogue's phthalate constants are van 't Hoff lines (NIST SRD 46 pK and ΔH°): no
+    // published temperature function of the phthalate steps was found in a readable source. The
+    // measured KHP pH has a minimum near 15 °C — a heat-capacity term the van 't Hoff form cannot
+    // carry — so the model drifts away at the ends of the range (measured: −0.033 at 0 °C, +0.008 at
+    // 25 °C, −0.022 at 50 °C, −0.050 at 60 °C). This test holds the 10–40 °C band to 0.015 and the
+    // whole 0–60 °C range to 0.06 (the measured worst case plus 0.01): a known miss, kept visible.
     let mut worst = 0.0_f64;
     for t in [0.0, 5.0, 10.0, 15.0, 20.0, 25.0, 30.0, 35.0, 40.0, 45.0, 50.0, 55.0, 60.0] {
         let tk = t + 273.16;
@@ -366,133 +686,73 @@ fn khp_follows_hamer_pinching_acree_formula() {
     println!("KHP 0–60 °C: worst |deviation| {worst:.4}");
 }
 
-// ---------------------------------------------------------------------------------------------
-// d. Catalogue pK(T) against the published temperature functions.
-// ---------------------------------------------------------------------------------------------
-
-/// Tolerance for a catalogue pK against the value computed from its published function: the
-/// four-decimal values below are rounded to 0.001, and the catalogue holds the same function, so
-/// any deviation beyond rounding means a wrong coefficient or a wrong ln → log10 conversion.
-const TOL_PK_FUNCTION: f64 = 0.005;
-
-/// pK of `step` of `system` at `celsius`, read the way the solver reads it (the solution's
-/// cached constant).
-fn catalogue_pk(system: &'static AcidBaseSystem, step: usize, celsius: f64) -> f64 {
-    let mut s: Solution<f64, 4> = Solution::new(Celsius::new(celsius).unwrap(), Activity::Ideal);
-    s.add_system(system, 1e-3).unwrap();
-    s.component_pka(0, step).unwrap()
-}
-
-/// Each row: system, step, source, pK at 0 / 25 / 50 / 60 °C.
-///
-/// The four pK values are NOT read from the sources' measurement tables: they were computed here
-/// (python3, by hand, outside the crate) from the published temperature function named beside
-/// them, at T = 273.15 / 298.15 / 323.15 / 333.15 K, rounded to 0.001. They check that the
-/// catalogue carries each function with the right coefficients, sign and ln → log10 conversion.
-/// Coefficients marked "from memory" have not been checked against the papers themselves.
-const PUBLISHED_PK_T: [(&str, usize, &str, [f64; 4]); 4] = [
-    (
-        "acetate",
-        1,
-        // Harned & Ehlers (1933), J. Am. Chem. Soc. 55, 652 (volume/page from memory):
-        // pK = 1170.48/T − 3.1649 + 0.013399·T (from memory), calc.
-        "Harned & Ehlers 1933",
-        [4.780, 4.756, 4.787, 4.812],
-    ),
-    (
-        "phosphate",
-        1,
-        // Bates (1951), J. Res. NBS 47, 127 (volume/page from memory):
-        // pK1 = 799.31/T − 4.5535 + 0.013486·T (from memory), calc.
-        "Bates 1951",
-        [2.056, 2.148, 2.278, 2.339],
-    ),
-    (
-        "phosphate",
-        2,
-        // Millero (1995), Geochim. Cosmochim. Acta 59, 661, K2P at S = 0:
-        // ln K2 = 172.1033 − 8814.715/T − 27.927·ln T (checked, via public transcriptions), calc.
-        "Millero 1995 (S = 0)",
-        [7.313, 7.200, 7.183, 7.197],
-    ),
-    (
-        "ammonium",
-        1,
-        // Bates & Pinching (1949): pK = 2835.76/T − 0.6322 + 0.001225·T (from memory), calc.
-        "Bates & Pinching 1949",
-        [10.084, 9.244, 8.539, 8.288],
-    ),
-];
-
-#[test]
-fn catalogue_pk_follows_the_published_temperature_functions() {
-    let mut worst = 0.0_f64;
-    for (key, step, source, pks) in PUBLISHED_PK_T {
-        let system = phdose::chem::catalogue::by_key(key).unwrap();
-        for (celsius, published) in [0.0, 25.0, 50.0, 60.0].into_iter().zip(pks) {
-            let got = catalogue_pk(system, step, celsius);
-            let d = got - published;
-            println!("{key} pK{step} {celsius:>4} °C: crate {got:.4}, {source} {published:.3}, deviation {d:+.4}");
-            worst = worst.max(d.abs());
-            assert!(d.abs() <= TOL_PK_FUNCTION, "{key} pK{step} at {celsius} °C: {got} vs {published} ({source})");
+/// Checks a buffer against the IUPAC table: within [`TOL_BUFFER_T`] at every row from
+/// `goal_from` to `goal_to` °C, and within `guard` at every row (for a buffer that misses the goal
+/// somewhere, `guard` is its measured worst rounded up to the next 0.001, plus 0.001: a known miss,
+/// stated in the test's comment and in README, that fails if it gets worse). Returns the deviations.
+fn check_buffer(
+    name: &str,
+    column: usize,
+    model: impl Fn(f64) -> f64,
+    goal_from: f64,
+    goal_to: f64,
+    guard: f64,
+) -> Vec<(f64, f64)> {
+    let (worst, rows) = buffer_deviation_over_table(name, column, model);
+    for &(t, d) in &rows {
+        if (goal_from..=goal_to).contains(&t) {
+            assert!(d.abs() <= TOL_BUFFER_T, "{name} at {t} °C: deviation {d} beyond the goal {TOL_BUFFER_T}");
         }
     }
-    println!("catalogue pK(T) vs published functions: worst |deviation| {worst:.4}");
+    assert!(worst <= guard, "{name}: worst deviation {worst} beyond {guard}");
+    rows
 }
 
-/// Tolerance for the phosphate buffer over 0–50 °C (measured worst case 0.0186, at 0 °C; 0.0129
-/// of it is the 25 °C offset that `iupac_standard_buffers_at_25c` also sees).
-const TOL_PHOSPHATE_T: f64 = 0.025;
-/// Bound on the spread (max − min) of the phosphate buffer's deviation over 0–50 °C: the shape of
-/// the curve, whatever the 25 °C offset. Measured 0.0065 with the published pK(T) functions; the
-/// former constant-ΔH° van 't Hoff constants gave 0.054 (−0.027 at 0 °C, +0.013 at 25 °C, −0.026
-/// at 50 °C).
-const TOL_PHOSPHATE_T_SPREAD: f64 = 0.01;
-/// Tolerance for the borax buffer over 0–50 °C (measured worst case 0.0225, at 0 °C).
-const TOL_BORAX_T: f64 = 0.03;
+#[test]
+fn carbonate_buffer_follows_the_iupac_temperature_table() {
+    // Catalogue CARBONATE (Plummer & Busenberg 1982). Measured worst 0.0093 (at 25 °C): meets the
+    // goal at every row.
+    check_buffer("carbonate 0.025/0.025", 4, |t| buffer_ph(t, CARBONATE_1_1), 0.0, 50.0, TOL_BUFFER_T);
+}
 
 #[test]
-fn phosphate_and_borax_buffers_follow_the_iupac_temperature_table() {
-    // pH(S) at 0–50 °C of 0.025/0.025 mol/kg KH2PO4/Na2HPO4 and 0.01 mol/kg borax: Buck et al.
-    // 2002, Pure Appl. Chem. 74, 2169 (IUPAC; NIST values; the same transcription as
-    // `phdose::probe::buffers::TABLE`). Model constants: catalogue PHOSPHATE (step 2: Millero 1995
-    // at S = 0) and BORATE (Manov, DeLollis & Acree 1944), Davies activities.
-    let table = [
-        (0.0, 6.984, 9.464),
-        (5.0, 6.951, 9.395),
-        (10.0, 6.923, 9.332),
-        (15.0, 6.900, 9.276),
-        (20.0, 6.881, 9.225),
-        (25.0, 6.865, 9.180),
-        (30.0, 6.853, 9.139),
-        (35.0, 6.844, 9.102),
-        (40.0, 6.838, 9.068),
-        (45.0, 6.834, 9.038),
-        (50.0, 6.833, 9.010),
-    ];
-    let (mut worst_p, mut worst_b) = (0.0_f64, 0.0_f64);
-    let (mut min_p, mut max_p) = (f64::INFINITY, f64::NEG_INFINITY);
-    for (t, phosphate, borax) in table {
-        let got_p = buffer_ph(t, PHOSPHATE_1_1);
-        let got_b = buffer_ph(t, BORAX);
-        let (dp, db) = (got_p - phosphate, got_b - borax);
-        println!(
-            "{t:>4} °C: phosphate model {got_p:.4}, IUPAC {phosphate}, deviation {dp:+.4}; borax model {got_b:.4}, IUPAC {borax}, deviation {db:+.4}"
-        );
-        worst_p = worst_p.max(dp.abs());
-        min_p = min_p.min(dp);
-        max_p = max_p.max(dp);
-        worst_b = worst_b.max(db.abs());
-        assert!(dp.abs() <= TOL_PHOSPHATE_T, "phosphate buffer at {t} °C: {got_p} vs {phosphate}");
-        assert!(db.abs() <= TOL_BORAX_T, "borax buffer at {t} °C: {got_b} vs {borax}");
-    }
-    println!(
-        "phosphate buffer 0–50 °C: worst |deviation| {worst_p:.4}, spread {:.4}; borax buffer: worst |deviation| {worst_b:.4}",
-        max_p - min_p
-    );
-    assert!(
-        max_p - min_p <= TOL_PHOSPHATE_T_SPREAD,
-        "phosphate buffer deviation spread {} over 0–50 °C",
-        max_p - min_p
-    );
+fn phosphate_buffer_follows_the_iupac_temperature_table() {
+    // Catalogue PHOSPHATE (step 2: Millero & Pierrot's refit of Bates & Acree 1943). Measured:
+    // +0.012 to +0.019, worst +0.0186 at 0 °C; the goal is met from 15 to 50 °C only. The deviation
+    // is a near-constant offset (spread 0.0065 over 0–50 °C), +0.013 already at 25 °C where pK2 is
+    // not in question (7.200; Goldberg et al. 2002 select 7.198): most likely the Davies activity
+    // coefficient of HPO4²⁻ at I = 0.1 against the Bates–Guggenheim convention of the table, not
+    // the temperature function. Known miss, guard 0.020.
+    let rows = check_buffer("phosphate 0.025/0.025", 2, |t| buffer_ph(t, PHOSPHATE_1_1), 15.0, 50.0, 0.020);
+    let (min, max) = rows.iter().fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), &(_, d)| (lo.min(d), hi.max(d)));
+    println!("phosphate 0.025/0.025: deviation spread {:.4}", max - min);
+    assert!(max - min <= 0.01, "phosphate buffer deviation spread {} over 0–50 °C", max - min);
+}
+
+#[test]
+fn borax_buffer_follows_the_iupac_temperature_table() {
+    // Catalogue BORATE (Manov, DeLollis & Acree 1944; Dickson 1990 agrees within 0.004, so the
+    // constant is not the question). Measured: −0.0225 at 0 °C shrinking to +0.001 at 50 °C; the goal
+    // is met from 10 to 50 °C. 0.01 mol/kg borax is 0.04 mol/kg boron, where polyborate ions form
+    // (more so in the cold, which is the likely cause); the catalogue has one boron per system and
+    // cannot carry them. Known miss, guard 0.024.
+    check_buffer("borax 0.01", 3, |t| buffer_ph(t, BORAX), 10.0, 50.0, 0.024);
+}
+
+#[test]
+fn khp_buffer_follows_the_iupac_temperature_table() {
+    // Catalogue PHTHALATE: van 't Hoff lines (NIST SRD 46), no published temperature function found.
+    // Measured: −0.0198 at 0 °C, +0.007 at 25 °C, −0.013 at 50 °C; the goal is met from 5 to 50 °C.
+    // Known miss, guard 0.021.
+    check_buffer("KHP 0.05", 1, |t| buffer_ph(t, KHP), 5.0, 50.0, 0.021);
+}
+
+#[test]
+fn tetroxalate_buffer_follows_the_iupac_temperature_table() {
+    // 0.05 mol/kg KH3(C2O4)2 (IUPAC 2002 lists it with the primary standards; its exact status is
+    // from memory). Catalogue OXALATE: van 't Hoff lines with pK and ΔH° from memory (K1: 1.25,
+    // ΔH° 0). Measured: −0.001 at 0 °C growing to −0.036 at 50 °C; the goal is met from 0 to 25 °C.
+    // A K1 that rises with temperature (a published function, e.g. Kettler, Palmer & Wesolowski
+    // 1991, was not found in a readable source) is what is missing. Known miss, guard 0.037.
+    check_buffer("tetroxalate 0.05", 0, |t| tetroxalate_ph(t, 0.05), 0.0, 25.0, 0.037);
 }
