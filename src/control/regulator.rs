@@ -1,5 +1,6 @@
-//! The control law of one tick: cached feed-forward, flow-mapped PI trim, split range between
-//! the caustic and the acid pump, tank model, adaptation and model residual.
+//! The control law of one tick: cached feed-forward, flow-mapped PI trim (its gain scheduled on
+//! the tank's residence time, [`PiTuning::for_tank`]), split range between the caustic and the
+//! acid pump, tank model, adaptation and model residual.
 //!
 //! [`Regulator::step`] is pure: no I/O, no clock (time comes in as `dt_s`), fixed memory. It
 //! does not decide *whether* to dose — the supervisor does, and tells it through
@@ -15,7 +16,7 @@
 //! and one evaluation of the reagent at the setpoint.
 
 use super::adapt::{AdaptSettings, Adaptation, MIN_CORRECTION_BOUND_EQ_PER_L, ResidualWarning};
-use super::feedback::{Pi, PiTuning};
+use super::feedback::{Pi, PiTuning, boosted_error};
 use super::feedforward::{
     DeadBands, FeedForward, ModelError, Reagent, ReagentSide, adapted_influent, compute, steady_flow_l_per_h,
     tank_equilibrium,
@@ -382,6 +383,18 @@ impl<R: Real, const N: usize> Regulator<R, N> {
             }
         };
 
+        // The PI's gain on the tank (see `super::feedback`): the chemistry's law schedules it on
+        // the tank's residence time at the flow through it, its extra action bounded by the
+        // feed-forward; the comparison law keeps its own gain.
+        let (tuning, error_pi) = match self.settings.law {
+            Law::Model if flow > R::ZERO => {
+                let through = flow + ff_flow.max(R::ZERO);
+                let tank = self.settings.pi.for_tank(self.settings.adapt.tank_volume_l / through * R::from_f64(3600.0));
+                (tank, boosted_error(&self.settings.pi, &tank, error_q, ff_flow))
+            }
+            _ => (self.settings.pi, error_q),
+        };
+
         // The law, in the mode the supervisor grants.
         let mut demand = [R::ZERO; 2];
         let mut trim = R::ZERO;
@@ -390,19 +403,19 @@ impl<R: Real, const N: usize> Regulator<R, N> {
         let auto = matches!(inputs.mode, RegulatorMode::Auto);
         match inputs.mode {
             RegulatorMode::Auto if ph_ok && flow > R::ZERO && dt > R::ZERO => {
-                let out = self.pi.step(&self.settings.pi, dt, ff_flow, error_q, error_ph, max);
+                let out = self.pi.step(&tuning, dt, ff_flow, error_pi, error_ph, max);
                 *side.of_mut(&mut demand) = out.flow_l_per_h;
                 trim = out.trim_l_per_h;
                 sched = out.scheduled_gain_l_per_h_per_ph;
                 saturated = out.saturated_high;
-                self.maybe_switch(inputs.ph, ff_flow + trim + self.settings.pi.proportional_gain() * error_q);
+                self.maybe_switch(inputs.ph, ff_flow + trim + tuning.proportional_gain() * error_pi);
             }
             RegulatorMode::Manual { side: ms, flow_l_per_h } => {
                 let m = self.reagent(ms).map_or(R::ZERO, |r| r.max_l_per_h);
                 let q = if flow_l_per_h.is_finite() { flow_l_per_h.max(R::ZERO).min(m) } else { R::ZERO };
                 *ms.of_mut(&mut demand) = q;
                 let tracked = if ms == side { q } else { R::ZERO };
-                self.pi.track(&self.settings.pi, ff_flow, error_q, tracked);
+                self.pi.track(&tuning, ff_flow, error_pi, tracked);
             }
             // Stopped (idle, tripped, no flow): nothing to be bumpless from. The integrator is
             // cleared, so dosing restarts from the feed-forward (rate-limited from zero), not
