@@ -286,8 +286,11 @@ fn check(case: &Case) {
                 // f32 may refuse only where f64 sits at a boundary it cannot resolve: the setpoint
                 // within f32's reach of the influent's or the reagent's pH, or the mixture at the
                 // activity model's edge.
+                // "Within f32's reach": 1e-3 pH plus twice f32's own resolution estimate for the
+                // influent (the README's f32 rule), which a salty water makes larger.
+                let res32 = water::<f32>(case, None).solve().map_or(0.0, |e| f64::from(e.resolution_ph));
                 let edge = p.mixture_ionic_strength_mol_per_l > 0.98 * DAVIES_MAX_IONIC_STRENGTH
-                    || (x - eq64.ph).abs() <= 1e-3
+                    || (x - eq64.ph).abs() <= 1e-3 + 2.0 * res32
                     || p.reagent_flow_l_per_h > 1e3 * flow;
                 assert!(edge, "f32 refused ({e:?}) a plan f64 makes: {p:?}");
             }

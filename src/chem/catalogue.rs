@@ -189,7 +189,7 @@ pub const FLUORIDE: AcidBaseSystem = AcidBaseSystem {
 /// Citrate: H3Cit / H2Cit⁻ / HCit²⁻ / Cit³⁻. Goldberg, Kishore & Lennen (2002), J. Phys. Chem.
 /// Ref. Data 31, 231, Section 8 (checked, via a public transcription): pK; ΔH° (kJ/mol);
 /// ΔCp° (J/(K·mol)) = 3.128; 4.07; −131 · 4.761; 2.23; −178 · 6.396; −3.38; −254, in their
-/// constant-ΔCp form ([`clarke_glew`]). The underlying cells are Bates & Pinching's (1949), 0–50 °C
+/// constant-ΔCp form (`clarke_glew` below). The underlying cells are Bates & Pinching's (1949), 0–50 °C
 /// (from memory). No temperature table was found in a readable source to check them against.
 pub const CITRATE: AcidBaseSystem = AcidBaseSystem {
     key: "citrate",

@@ -21,15 +21,137 @@
 
 use super::activity;
 use super::solution::Solution;
-use super::solve::{Eval, PH_MAX, PH_MIN, alphas};
+use super::solution::{Component, MAX_SYSTEMS};
+use super::solve::{Eval, PH_MAX, PH_MIN};
+use super::system::MAX_STEPS;
 use crate::real::Real;
 
 /// Most evaluations of the quick path; a solve it has not finished by then continues with the
 /// nested solve from the last point.
 pub const QUICK_ITERATIONS: u32 = 10;
 
+/// Largest |pKa| the quick path takes (a solution with a larger one, which no chemistry has, is
+/// left to the nested solve).
+pub const MAX_PK: f64 = 100.0;
+
 /// Largest pH step of one quick iteration.
 const MAX_STEP_PH: f64 = 4.0;
+
+/// Constants of one solve, computed once per solve instead of once per evaluation: each
+/// component's step constants K_j = 10^(−pK_j) and Kw = 10^(−pKw).
+pub(crate) struct Constants<R> {
+    ka: [[R; MAX_STEPS]; MAX_SYSTEMS],
+    kw: R,
+}
+
+/// What the quick path reads of a solution, without its capacity: the quick path's code is
+/// compiled once per real type instead of once per solution capacity (it is most of the
+/// solver's code size on a board).
+pub(crate) struct View<'a, R: Real> {
+    components: &'a [Component<R>],
+    strong_charge_eq_per_l: R,
+    strong_ionic_strength_mol_per_l: R,
+    pkw: R,
+    debye_huckel_a: R,
+    davies: bool,
+}
+
+impl<R: Real, const N: usize> Solution<R, N> {
+    /// The quick path's view of this solution.
+    pub(crate) fn view(&self) -> View<'_, R> {
+        View {
+            components: self.components(),
+            strong_charge_eq_per_l: self.strong_charge_eq_per_l(),
+            strong_ionic_strength_mol_per_l: self.strong_ionic_strength_mol_per_l(),
+            pkw: self.pkw(),
+            debye_huckel_a: self.debye_huckel_a(),
+            davies: self.activity() == super::activity::Activity::Davies,
+        }
+    }
+}
+
+/// Largest ratio of neighbouring forms an evaluation carries (1e12 in `f32`, 1e30 in `f64`).
+/// A larger one means the lower form's fraction is below 1e-12 (1e-30) of its neighbour's:
+/// far beneath the precision, so capping changes no result; it keeps products of up to three
+/// ratios finite.
+fn ratio_cap<R: Real>() -> R {
+    R::from_f64(if R::RELATIVE_PRECISION > 1e-10 { 1e12 } else { 1e30 })
+}
+
+/// `base`^`exponent` by binary powering (at most 32 squarings).
+fn pow_int<R: Real>(base: R, exponent: i32) -> R {
+    let mut e = exponent.unsigned_abs();
+    let (mut acc, mut b) = (R::ONE, base);
+    while e > 0 {
+        if e & 1 == 1 {
+            acc *= b;
+        }
+        b *= b;
+        e >>= 1;
+    }
+    if exponent < 0 { R::ONE / acc } else { acc }
+}
+
+/// Alpha fractions of a component from the ratios of neighbouring forms,
+/// [A_j]/[A_{j−1}] = K_j·10^pH·10^(−φ·(2·z_{j−1} − 1)), as products: no exponential per form.
+/// `inv_h` = 10^pH, `big_g` = 10^φ (φ the Davies factor).
+///
+/// With `fast-math`, `f32`'s exponential is an approximation (about 2e-3 relative): there each
+/// ratio is one exponential of its whole exponent, as in the nested solve, instead of a product
+/// of three approximations (`x` and `af` are the pH and the Davies factor for that case).
+fn alphas_from_ratios<R: Real>(
+    c: &Component<R>,
+    ka: &[R; MAX_STEPS],
+    (inv_h, big_g): (R, R),
+    (x, af): (R, R),
+) -> [R; MAX_STEPS + 1] {
+    let approximate_exp = cfg!(feature = "fast-math") && R::RELATIVE_PRECISION > 1e-10;
+    let n = c.system.step_count();
+    let cap = ratio_cap::<R>();
+    let mut d = [R::ZERO; MAX_STEPS + 1];
+    let mut product = R::ONE;
+    let mut sum = R::ONE;
+    if let Some(first) = d.get_mut(0) {
+        *first = R::ONE;
+    }
+    for (j, (slot, k)) in d.iter_mut().skip(1).zip(ka.iter()).enumerate().take(n) {
+        let z_prev = c.system.charge_of_form(j);
+        let raw = if approximate_exp {
+            (x - crate::invariant::at(&c.pk, j) - af * R::from_i32(2 * z_prev - 1)).exp10()
+        } else {
+            *k * inv_h * pow_int(big_g, 1 - 2 * z_prev)
+        };
+        let ratio = raw.max(R::ZERO).min(cap);
+        product *= ratio;
+        *slot = product;
+        sum += product;
+    }
+    for v in d.iter_mut().take(n + 1) {
+        *v = *v / sum;
+    }
+    d
+}
+
+/// ln(P/N). Near the root (|u| ≤ 0.1 with u = (P − N)/(P + N)) by the series
+/// ln(P/N) = 2·(u + u³/3 + … + u¹⁵/15), truncation below 1e-18 relative, exact arithmetic only:
+/// it carries the ratio's rounding alone, where ln P − ln N would add the rounding of two
+/// logarithms of size |ln P|, and where an approximate `ln` (`fast-math`) would add its own
+/// error right where the iteration decides it has converged. Elsewhere one logarithm.
+fn ln_ratio<R: Real>(p: R, n: R) -> R {
+    let u = (p - n) / (p + n);
+    if u.abs() <= R::from_f64(0.1) {
+        let u2 = u * u;
+        let mut term = u;
+        let mut sum = R::ZERO;
+        for k in 0..8_i32 {
+            sum += term / R::from_i32(2 * k + 1);
+            term *= u2;
+        }
+        R::from_f64(2.0) * sum
+    } else {
+        (p / n).ln()
+    }
+}
 
 /// `true` for a negative number (`false` for NaN as well as for ≥ 0).
 fn negative<R: Real>(v: R) -> bool {
@@ -66,14 +188,54 @@ pub(crate) enum Quick<R> {
     Continue(u32, R, R),
 }
 
-impl<R: Real, const N: usize> Solution<R, N> {
-    /// The log charge ratio and its derivatives at pH `x` with Davies factor `af`.
-    pub(crate) fn evaluate_log(&self, x: R, af: R) -> LogEval<R> {
+impl<R: Real> View<'_, R> {
+    /// ε·S/β at `ph` (the same estimate as `Solution::resolution`).
+    fn resolution(&self, ph: R, af: R, beta: R) -> R {
+        let mut scale = (af - ph).exp10() + (ph - self.pkw + af).exp10();
+        scale += R::from_f64(2.0) * self.strong_ionic_strength_mol_per_l;
+        for c in self.components {
+            let z0 = c.system.charge_of_form(0);
+            let z_last = z0 - i32::from(c.system.steps);
+            scale += c.total_mol_per_l * R::from_i32(z0.abs().max(z_last.abs()));
+        }
+        let epsilon = R::from_f64(R::RELATIVE_PRECISION);
+        if beta > R::ZERO { epsilon * scale / beta } else { R::from_f64(f64::INFINITY) }
+    }
+
+    /// The constants of one solve (one exponential per step, and one for Kw).
+    /// `None` when a step constant is not finite or beyond ±[`MAX_PK`] (no chemistry has
+    /// one): such a solution goes to the nested solve, which refuses or solves it as it always did.
+    pub(crate) fn constants(&self) -> Option<Constants<R>> {
+        let mut ka = [[R::ZERO; MAX_STEPS]; MAX_SYSTEMS];
+        let limit = R::from_f64(MAX_PK);
+        for (row, c) in ka.iter_mut().zip(self.components) {
+            for (k, pk) in row.iter_mut().zip(c.pk.iter()).take(c.system.step_count()) {
+                if !(pk.is_finite() && pk.abs() <= limit) {
+                    return None;
+                }
+                *k = (-*pk).exp10();
+            }
+        }
+        Some(Constants { ka, kw: (-self.pkw).exp10() })
+    }
+
+    /// The log charge ratio and its derivatives at pH `x` with Davies factor `af`: two
+    /// exponentials (10^−pH and 10^φ) and one logarithm, the rest products.
+    pub(crate) fn evaluate_log(&self, x: R, af: R, k: &Constants<R>) -> LogEval<R> {
         let ln10 = R::LN_10;
         let ln10_2 = ln10 * ln10;
-        let h = (af - x).exp10();
-        let oh = (x - self.pkw() + af).exp10();
-        let q = self.strong_charge_eq_per_l();
+        // [H+] = 10^(φ − pH), [OH−] = Kw·10^(pH + φ).
+        let e = (-x).exp10();
+        let inv_e = R::ONE / e;
+        let big_g = if af == R::ZERO { R::ONE } else { af.exp10() };
+        // With `fast-math` (approximate f32 exponentials), one exponential each, as in the
+        // nested solve, instead of products of approximations.
+        let (h, oh) = if cfg!(feature = "fast-math") && R::RELATIVE_PRECISION > 1e-10 {
+            ((af - x).exp10(), (x - self.pkw + af).exp10())
+        } else {
+            (e * big_g, k.kw * inv_e * big_g)
+        };
+        let q = self.strong_charge_eq_per_l;
         // Positive side: value, d/dx, d²/dx², ∂/∂af; the same for the negative side.
         let ln10_3 = ln10_2 * ln10;
         let (mut p, mut p1, mut p2, mut p3, mut pa) = (h, -ln10 * h, ln10_2 * h, -ln10_3 * h, ln10 * h);
@@ -87,8 +249,8 @@ impl<R: Real, const N: usize> Solution<R, N> {
         let mut ionic2 = h + oh;
         let mut ionic2_x = ln10 * (oh - h);
         let mut ionic2_af = ln10 * (oh + h);
-        for c in self.components() {
-            let a = alphas(c, x, af);
+        for (c, ka) in self.components.iter().zip(k.ka.iter()) {
+            let a = alphas_from_ratios(c, ka, (inv_e, big_g), (x, af));
             let steps = c.system.step_count();
             let z0 = c.system.charge_of_form(0);
             let mut nbar = R::ZERO;
@@ -145,12 +307,9 @@ impl<R: Real, const N: usize> Solution<R, N> {
             eval: Eval {
                 excess: p - n,
                 beta: ln10 * var_sum,
-                ionic_strength: half * ionic2 + self.strong_ionic_strength_mol_per_l(),
+                ionic_strength: half * ionic2 + self.strong_ionic_strength_mol_per_l,
             },
-            // One logarithm of the ratio: near the root P/N ≈ 1 and ln(P/N) carries the ratio's
-            // rounding only, where ln P − ln N would add the rounding of two logarithms of size
-            // |ln P| (five times more noise in f32 at millimolar charges).
-            g: (p / n).ln(),
+            g: ln_ratio(p, n),
             g1: rp - rn,
             g2: p2 / p - rp * rp - n2 / n + rn * rn,
             // d/dx (P″/P − (P′/P)²) = P‴/P − 3·P″P′/P² + 2·(P′/P)³.
@@ -164,8 +323,10 @@ impl<R: Real, const N: usize> Solution<R, N> {
 
     /// A cold start without a charge-balance evaluation: the pH where the charges would
     /// balance if every step were all-or-nothing at its pKa (a staircase in pH), refined by
-    /// Henderson–Hasselbalch on the step where the balance changes sign, or by water alone when
-    /// the root lies between steps. `af` is the Davies factor the step constants are corrected
+    /// Henderson–Hasselbalch on the step where the balance changes sign, by water alone when
+    /// the root lies between steps with charge left over, and by the neighbouring steps' partial
+    /// reactions when the charges balance on a plateau (salts of weak parents, amphiprotic forms,
+    /// a weak acid alone). `af` is the Davies factor the step constants are corrected
     /// with (0 in ideal mode). Cost: (steps in the solution)² comparisons (≤ 576 for eight
     /// triprotic systems) and at most two logarithms.
     pub(crate) fn cold_start_ph(&self, af: R) -> R {
@@ -173,8 +334,8 @@ impl<R: Real, const N: usize> Solution<R, N> {
         let hi = R::from_f64(PH_MAX - 1.0);
         let tiny = R::from_f64(1e-300_f64.max(f64::from(f32::MIN_POSITIVE)));
         // Below every step: all systems fully protonated.
-        let mut s_low = self.strong_charge_eq_per_l();
-        for c in self.components() {
+        let mut s_low = self.strong_charge_eq_per_l;
+        for c in self.components {
             s_low += c.total_mol_per_l * R::from_i32(c.system.charge_of_form(0));
         }
         // Effective breakpoint of step j (1-based) of component c.
@@ -185,12 +346,29 @@ impl<R: Real, const N: usize> Solution<R, N> {
         // The step where S(b−) > 0 ≥ S(b+): S(b−) = s_low − Σ_{p < b} C, S(b+) = S(b−) − Σ_{p = b} C.
         let mut best: Option<(R, R, R)> = None; // (b, S(b−), S(b+))
         let mut s_high = s_low;
-        for c in self.components() {
+        // (breakpoint, total) of the lowest and of the highest step.
+        let mut first: Option<(R, R)> = None;
+        let mut top: Option<(R, R)> = None;
+        // A level of the staircase this close to zero is zero: the charges balance on a plateau
+        // (a salt of a weak parent, an amphiprotic form, a weak acid alone), where the root is
+        // set by the neighbouring steps' partial reactions, not by a leftover of charge.
+        let mut scale = self.strong_charge_eq_per_l.abs();
+        for c in self.components {
+            scale += c.total_mol_per_l * R::from_i32(i32::from(c.system.steps).max(1));
+        }
+        let zero = R::from_f64(1e-9) * scale;
+        for c in self.components {
             for j in 1..=c.system.step_count() {
                 let b = point(c, j);
                 s_high -= c.total_mol_per_l;
+                if first.is_none_or(|(f, _)| b < f) {
+                    first = Some((b, c.total_mol_per_l));
+                }
+                if top.is_none_or(|(t, _)| b > t) {
+                    top = Some((b, c.total_mol_per_l));
+                }
                 let (mut below, mut at) = (R::ZERO, R::ZERO);
-                for d in self.components() {
+                for d in self.components {
                     for k in 1..=d.system.step_count() {
                         let p = point(d, k);
                         if p < b {
@@ -201,18 +379,52 @@ impl<R: Real, const N: usize> Solution<R, N> {
                     }
                 }
                 let (before, after) = (s_low - below, s_low - below - at);
-                if before > R::ZERO && after <= R::ZERO {
+                if before > zero && after <= zero {
                     best = Some((b, before, after));
                 }
             }
         }
-        let pkw = self.pkw();
+        let pkw = self.pkw;
+        let kw = (-pkw).exp10();
+        // Past the highest step b (total c) with a leftover s ≥ 0: OH⁻ = s + the top form's
+        // hydrolysis c·10^(b−pH); a quadratic in u = 10^pH: Kw·u² − s·u − c·10^b = 0.
+        let top_end = |b: R, c: R, s: R| -> R {
+            let u = (s + (s * s + R::from_f64(4.0) * kw * c * b.exp10()).sqrt()) / (R::from_f64(2.0) * kw);
+            u.max(tiny).log10() - af
+        };
+        // Below the lowest step b (total c) with a deficit s ≤ 0: H⁺ = −s + the bottom form's
+        // dissociation c·10^(pH−b); a quadratic in v = 10^−pH: v² + s·v − c·10^−b = 0.
+        let low_end = |b: R, c: R, s: R| -> R {
+            let v = (-s + (s * s + R::from_f64(4.0) * c * (-b).exp10()).sqrt()) * R::from_f64(0.5);
+            af - v.max(tiny).log10()
+        };
         let x = match best {
+            None if s_high > R::ZERO && s_high <= zero => top.map_or(R::from_f64(7.0), |(b, c)| top_end(b, c, s_high)),
             // Every step is passed with charge to spare: the root is where OH⁻ takes it up.
             None if s_high > R::ZERO => pkw + s_high.max(tiny).log10() - af,
             // Every step leaves a deficit: H⁺ makes it up.
-            None if s_low < R::ZERO => af - (-s_low).max(tiny).log10(),
-            None => R::from_f64(7.0),
+            None if s_low < -zero => af - (-s_low).max(tiny).log10(),
+            None => first.map_or(R::from_f64(7.0), |(b, c)| low_end(b, c, s_low)),
+            Some((b, before, after)) if after >= -zero => {
+                // (`after` ≤ zero from the search: this arm is |after| ≤ zero.)
+                // A plateau at zero above b: between b and the next step up (jumps j_b and
+                // j_next) the two partial reactions balance, pH = ½(b + b_next + log10(j_b/j_next));
+                // past the top step, water takes up the hydrolysis.
+                let jump = before - after;
+                let mut next: Option<(R, R)> = None;
+                for c in self.components {
+                    for j in 1..=c.system.step_count() {
+                        let p = point(c, j);
+                        if p > b && next.is_none_or(|(n, _)| p < n) {
+                            next = Some((p, c.total_mol_per_l));
+                        }
+                    }
+                }
+                match next {
+                    Some((n, j_next)) => R::from_f64(0.5) * (b + n + (jump / j_next.max(tiny)).log10()),
+                    None => top_end(b, jump, after.max(R::ZERO)),
+                }
+            }
             Some((b, before, after)) => {
                 let water_left = pkw + before.max(tiny).log10() - af;
                 let water_right = af - (-after).max(tiny).log10();
@@ -238,8 +450,8 @@ impl<R: Real, const N: usize> Solution<R, N> {
     /// Davies factor, F the Davies function), by Newton's method on both, with Halley's
     /// correction on the pH equation.
     pub(crate) fn quick_solve(&self, start: R, ionic: R, limit: u32) -> Quick<R> {
-        let davies = self.activity() == super::activity::Activity::Davies;
-        let a = self.debye_huckel_a();
+        let davies = self.davies;
+        let a = self.debye_huckel_a;
         let max_ionic = R::from_f64(activity::DAVIES_MAX_IONIC_STRENGTH);
         let clamp_i = |i: R| i.max(R::ZERO).min(max_ionic);
         let (lo0, hi0) = (R::from_f64(PH_MIN), R::from_f64(PH_MAX));
@@ -253,9 +465,12 @@ impl<R: Real, const N: usize> Solution<R, N> {
         let mut last_ionic = ionic;
         let mut previous_step: Option<R> = None;
         let mut spent = 0_u32;
+        let Some(constants) = self.constants() else {
+            return Quick::Continue(0, x, ionic);
+        };
         while spent < limit.min(QUICK_ITERATIONS) {
             spent += 1;
-            let e = self.evaluate_log(x, af);
+            let e = self.evaluate_log(x, af, &constants);
             let finite = e.g.is_finite()
                 && e.g1.is_finite()
                 && e.g2.is_finite()

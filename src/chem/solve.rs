@@ -350,9 +350,9 @@ impl<R: Real, const N: usize> Solution<R, N> {
         let mut ionic = hint;
         if options.newton && limit > 0 {
             if options.warm_start_ph.is_none() {
-                start = self.cold_start_ph(self.activity_factor(hint));
+                start = self.view().cold_start_ph(self.activity_factor(hint));
             }
-            match self.quick_solve(start, hint, limit) {
+            match self.view().quick_solve(start, hint, limit) {
                 Quick::Done(ph, e, it, af) => return Ok(self.finish(ph, e, it, af)),
                 Quick::Continue(it, x, i) => {
                     total_iterations = it;
