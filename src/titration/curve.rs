@@ -165,8 +165,9 @@ impl<R: Real, const N: usize, const M: usize> Titration<'_, R, N, M> {
         Ok(())
     }
 
-    /// Equivalence points predicted from the composition (strong titrants only: the titrant's
-    /// own acid–base systems are not counted). Level 0 has every system fully protonated; then
+    /// Equivalence points predicted from the composition (strong titrants only: the titrant
+    /// counts with [`strong_equivalents_eq_per_l`], so sulfuric acid counts with both protons;
+    /// its weak steps are not counted). Level 0 has every system fully protonated; then
     /// each system step, taken in order of pKa, is a further stoichiometric level; the titrant volume that reaches it is where the strong-ion charge
     /// balances the systems' charges with every lower-pKa step completed. Points within
     /// (0, `max_titrant_l`] are returned with their pH (solved); `out` keeps the first `E`. At
@@ -178,7 +179,7 @@ impl<R: Real, const N: usize, const M: usize> Titration<'_, R, N, M> {
     ) -> Result<(), CurveError> {
         self.check()?;
         out.clear();
-        let ct = self.titrant.strong_charge_eq_per_l();
+        let ct = strong_equivalents_eq_per_l(&self.titrant);
         if ct == R::ZERO {
             return Ok(());
         }
@@ -240,6 +241,29 @@ impl<R: Real, const N: usize, const M: usize> Titration<'_, R, N, M> {
         }
         Ok(())
     }
+}
+
+/// Highest pKa (at the titrant's temperature) at which a titrant's acid step counts as complete
+/// in the stoichiometry: 2.5, where the step is at least 98 % dissociated at pH 4.3, the lowest of
+/// the usual alkalinity endpoints (common practice, no source). Both of sulfuric acid's steps
+/// (pKa about −3 and 2.0) count; phosphoric acid's first (2.1) does, its second (7.2) does not.
+pub const STRONG_STEP_MAX_PKA: f64 = 2.5;
+
+/// The equivalents per litre a titrant delivers as a strong reagent, eq/L (> 0 base, < 0 acid):
+/// its strong-ion charge plus, for each of its acid–base systems with at least one step at a pKa
+/// ≤ [`STRONG_STEP_MAX_PKA`], the charge that system carries with those steps complete
+/// (−2 × total for sulfate). Systems without such a step (a weak titrant's) are not counted,
+/// as before. One pass over the titrant's systems.
+pub fn strong_equivalents_eq_per_l<R: Real, const N: usize>(titrant: &Solution<R, N>) -> R {
+    let limit = R::from_f64(STRONG_STEP_MAX_PKA);
+    let mut q = titrant.strong_charge_eq_per_l();
+    for c in titrant.components() {
+        let strong_steps = c.pk.iter().take(c.system.step_count()).filter(|pk| **pk <= limit).count();
+        if strong_steps > 0 {
+            q += c.total_mol_per_l * R::from_i32(c.system.charge_of_form(strong_steps));
+        }
+    }
+    q
 }
 
 /// One system step as a stoichiometric level of [`Titration::model_equivalence_points`].
@@ -458,6 +482,39 @@ mod tests {
         for (f, m) in found.iter().zip(model.iter()) {
             assert!((f.titrant_l - m.titrant_l).abs() < 3e-4, "{f:?} vs {m:?}");
         }
+    }
+
+    #[test]
+    fn sulfuric_acid_titrant_counts_both_protons() {
+        // A bicarbonate cooling-tower make-up water (invented): the same equivalence points with
+        // 0.02 M H2SO4 as with 0.04 M HCl (the same acid equivalents); before, the sulfuric acid
+        // titrant gave none (its charge was held in its sulfate system, not its strong ions).
+        let mut sample = ideal::<2>();
+        sample.add_formula("NaHCO3", 0.004).unwrap();
+        sample.add_formula("Na2CO3", 0.0003).unwrap();
+        let points = |formula: &str, conc: f64| {
+            let mut titrant = ideal::<2>();
+            titrant.add_formula(formula, conc).unwrap();
+            assert!((strong_equivalents_eq_per_l(&titrant) + 0.04).abs() < 1e-15, "{formula}");
+            let t = Titration { sample: &sample, sample_volume_l: 0.05, titrant: &titrant };
+            let mut eq: Vec<EquivalencePoint<f64>, 4> = Vec::new();
+            t.model_equivalence_points(0.012, &mut eq).unwrap();
+            eq.iter().map(|e| (e.system, e.step, e.titrant_l)).collect::<std::vec::Vec<_>>()
+        };
+        let (hcl, h2so4) = (points("HCl", 0.04), points("H2SO4", 0.02));
+        assert_eq!(hcl.len(), 2, "{hcl:?}");
+        assert_eq!(h2so4.len(), 2, "{h2so4:?}");
+        for (a, b) in hcl.iter().zip(&h2so4) {
+            assert_eq!((a.0, a.1), (b.0, b.1));
+            assert!((a.2 - b.2).abs() < 1e-12, "{a:?} vs {b:?}");
+        }
+        // A weak titrant's system is still not counted; phosphoric acid counts its first step.
+        let mut weak = ideal::<1>();
+        weak.add_formula("CH3COOH", 0.1).unwrap();
+        assert_eq!(strong_equivalents_eq_per_l(&weak), 0.0);
+        let mut phosphoric = ideal::<1>();
+        phosphoric.add_formula("H3PO4", 0.1).unwrap();
+        assert!((strong_equivalents_eq_per_l(&phosphoric) + 0.1).abs() < 1e-15);
     }
 
     #[test]

@@ -2,7 +2,7 @@
 
 use heapless::Vec as FixedVec;
 use phdose::chem::Solution;
-use phdose::titration::curve::{CurvePoint, Titration};
+use phdose::titration::curve::{CurvePoint, Titration, strong_equivalents_eq_per_l};
 use phdose::titration::fit::{self, Effective, FitError, FitResult, FitSpec, PKA_RANGE};
 
 use super::input::FitInput;
@@ -56,7 +56,8 @@ pub fn crossing_ml(points_ml: &[(f64, f64)], ph: f64) -> Option<f64> {
 /// The documented starting guess (see `phdose help fit`).
 pub fn guess(input: &FitInput, titrant: &ReagentSolution) -> Start {
     let v0 = input.sample_volume_l;
-    let ct = titrant.strong_charge_eq_per_l();
+    // Sulfuric acid counts with both protons (see `strong_equivalents_eq_per_l`).
+    let ct = strong_equivalents_eq_per_l(titrant);
     let (strong, basis) = match crossing_ml(&input.points_ml, 7.0) {
         Some(ml) => (-ct * ml / 1000.0 / v0, format!("from the pH 7 crossing at {} mL of titrant", fixed(ml, 2))),
         None => {
