@@ -179,7 +179,7 @@ impl<R: Real, const N: usize, const M: usize> Titration<'_, R, N, M> {
     ) -> Result<(), CurveError> {
         self.check()?;
         out.clear();
-        let ct = strong_equivalents_eq_per_l(&self.titrant);
+        let ct = strong_equivalents_eq_per_l(self.titrant);
         if ct == R::ZERO {
             return Ok(());
         }
