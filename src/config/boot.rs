@@ -13,7 +13,9 @@
 //!    maximum influent flow (the dose model with its pump-capacity check); controllable at the
 //!    design flow (one pump step moves the pH by no more than the band; at the minimum and
 //!    maximum flow a warning); the design dose at the maximum flow within the hourly overdose
-//!    limit (else the guard would trip in normal operation);
+//!    limit (else the guard would trip in normal operation); at the design flow, acid dosed to
+//!    the setpoint must not release chlorine or hydrogen sulfide from the influent (errors 219,
+//!    220; see [`crate::titration::hazard`]);
 //! 5. the probes: one to three, each calibration accepted (slope and offset, see
 //!    [`crate::probe`]); old calibrations and a single probe are warnings.
 //!
@@ -30,6 +32,7 @@ use crate::control::feedforward::Reagent;
 use crate::control::regulator::{Regulator, RegulatorError};
 use crate::real::Real;
 use crate::titration::dose::{DoseCheck, DoseError, DoseRequest, plan};
+use crate::titration::hazard::Gas;
 use crate::units::{Celsius, LitresPerHour};
 
 /// What a finding is about. Codes 2xx are errors (dosing refused), 3xx warnings.
@@ -73,6 +76,13 @@ pub enum Code {
     PumpSettings,
     /// 218: the control law could not be built (e.g. capacity).
     ModelFailed,
+    /// 219: acid dosing to the setpoint releases chlorine from the influent's hypochlorite
+    /// (value: the setpoint; limit: the pH below which the release is significant, see
+    /// [`crate::titration::hazard`]).
+    ChlorineRelease,
+    /// 220: acid dosing to the setpoint releases hydrogen sulfide from the influent's sulfide
+    /// (value: the setpoint; limit: the release pH).
+    HydrogenSulfideRelease,
     /// 301: a probe's calibration is older than allowed.
     CalibrationOld,
     /// 302: one pump step moves the pH more than the band at the minimum or maximum flow.
@@ -85,7 +95,7 @@ pub enum Code {
 
 impl Code {
     /// Every code, errors (2xx) then warnings (3xx), in number order.
-    pub const ALL: [Self; 22] = [
+    pub const ALL: [Self; 24] = [
         Self::BlobUnreadable,
         Self::SettingOutOfRange,
         Self::FlowsInconsistent,
@@ -104,6 +114,8 @@ impl Code {
         Self::ReagentStrength,
         Self::PumpSettings,
         Self::ModelFailed,
+        Self::ChlorineRelease,
+        Self::HydrogenSulfideRelease,
         Self::CalibrationOld,
         Self::TooSteepAtFlowLimit,
         Self::ResolutionLimited,
@@ -131,6 +143,8 @@ impl Code {
             Self::ReagentStrength => 216,
             Self::PumpSettings => 217,
             Self::ModelFailed => 218,
+            Self::ChlorineRelease => 219,
+            Self::HydrogenSulfideRelease => 220,
             Self::CalibrationOld => 301,
             Self::TooSteepAtFlowLimit => 302,
             Self::ResolutionLimited => 303,
@@ -164,6 +178,10 @@ impl Code {
             Self::ReagentStrength => "reagent strength invalid or density unknown",
             Self::PumpSettings => "pump settings invalid",
             Self::ModelFailed => "control law could not be built",
+            Self::ChlorineRelease => "acid to this setpoint releases chlorine (Cl2) from the influent's hypochlorite",
+            Self::HydrogenSulfideRelease => {
+                "acid to this setpoint releases hydrogen sulfide (H2S) from the influent's sulfide"
+            }
             Self::CalibrationOld => "probe calibration older than allowed",
             Self::TooSteepAtFlowLimit => "one pump step moves the pH more than the band at a flow limit",
             Self::ResolutionLimited => "working precision cannot resolve the plan",
@@ -496,6 +514,17 @@ fn dose_checks<R: Real>(
                             resolution_ph.to_f64(),
                             needed_ph.to_f64(),
                         )),
+                        // The same mixture chemistry at every flow: reported once, at the design flow.
+                        DoseCheck::GasRelease { gas, release_below_ph, .. } if at_design => {
+                            let code = match gas {
+                                Gas::Chlorine => Code::ChlorineRelease,
+                                Gas::HydrogenSulfide => Code::HydrogenSulfideRelease,
+                            };
+                            report.push(Finding::named(code, name, sp.to_f64(), release_below_ph.to_f64()));
+                        }
+                        // The skid file holds no reagent storage temperature: boot requests carry
+                        // no stock, so the crystallisation check cannot arise here.
+                        DoseCheck::GasRelease { .. } | DoseCheck::ReagentCrystallises { .. } => {}
                     }
                 }
                 if flow == i.max_flow_l_per_h {

@@ -14,6 +14,7 @@ use heapless::Vec;
 use crate::chem::activity::{Activity, DAVIES_MAX_IONIC_STRENGTH};
 use crate::chem::{CompositionError, Equilibrium, Solution, SolveError};
 use crate::real::Real;
+use crate::titration::hazard::{self, Gas, ReagentStock};
 use crate::units::{InvalidInput, LitresPerHour, Ph, PhWidth, Quantity};
 
 /// Most ionic-strength rounds of the fast path of one dose computation.
@@ -76,12 +77,15 @@ pub struct DoseRequest<R: Real> {
     pub pump: Option<Pump<R>>,
     /// Full width of the control band; with a pump, enables the steepness check.
     pub band: Option<PhWidth<R>>,
+    /// The reagent as stored (grade and tank temperature), if known: enables the
+    /// crystallisation check ([`DoseCheck::ReagentCrystallises`]).
+    pub reagent_stock: Option<ReagentStock<R>>,
 }
 
 impl<R: Real> DoseRequest<R> {
     /// A request for `setpoint` alone (no pump, no band: no capacity or steepness check).
     pub fn new(setpoint: Ph<R>) -> Self {
-        Self { setpoint, pump: None, band: None }
+        Self { setpoint, pump: None, band: None, reagent_stock: None }
     }
 
     /// Checks raw numbers into a request (the error names the first value out of range).
@@ -90,7 +94,13 @@ impl<R: Real> DoseRequest<R> {
             setpoint: Ph::new(setpoint_ph)?,
             pump: pump.map(|(max, step)| Pump::new(max, step)).transpose()?,
             band: band_ph.map(PhWidth::new).transpose()?,
+            reagent_stock: None,
         })
+    }
+
+    /// The same request with the reagent's stock (grade and storage temperature).
+    pub fn with_reagent_stock(self, stock: ReagentStock<R>) -> Self {
+        Self { reagent_stock: Some(stock), ..self }
     }
 }
 
@@ -129,7 +139,40 @@ pub enum DoseCheck<R: Real> {
         /// step's pH change, pH.
         needed_ph: R,
     },
+    /// Error-level hazard: the reagent lowers the pH to a setpoint below the pH where `gas` is
+    /// released from the influent (chlorine from hypochlorite, hydrogen sulfide from sulfide;
+    /// see [`crate::titration::hazard`] for the threshold and its sources). Choose another
+    /// setpoint or remove the hypochlorite/sulfide first; never dose acid onto it blindly.
+    GasRelease {
+        /// The gas.
+        gas: Gas,
+        /// The pH below which the release is significant (gas-forming species above
+        /// [`hazard::GAS_FRACTION_LIMIT`] of its total) in the mixture at the planned flow.
+        release_below_ph: R,
+        /// Fraction of the total present as the gas-forming species at the setpoint (0–1).
+        gas_fraction: R,
+    },
+    /// Error-level hazard: the reagent is stored below its crystallisation (freezing)
+    /// temperature ([`hazard::CRYSTALLISATION`]): lines and pump heads block, the dose stops.
+    ReagentCrystallises {
+        /// The grade's crystallisation temperature, °C.
+        crystallises_below_c: R,
+        /// The storage temperature given, °C.
+        reagent_temperature_c: R,
+    },
 }
+
+impl<R: Real> DoseCheck<R> {
+    /// `true` for the hazard checks (gas release, crystallisation): a plan with one of these
+    /// must not be used as it stands.
+    pub fn is_hazard(&self) -> bool {
+        matches!(self, Self::GasRelease { .. } | Self::ReagentCrystallises { .. })
+    }
+}
+
+/// Most checks one plan reports: one of each kind (pump, steepness, resolution, two gases,
+/// crystallisation).
+pub const MAX_CHECKS: usize = 6;
 
 /// A feed-forward plan.
 #[derive(Clone, Debug, PartialEq)]
@@ -160,7 +203,7 @@ pub struct DosePlan<R: Real> {
     /// from 1e-6 on buffered setpoints to 0.1 near unbuffered equivalence points.
     pub resolution_ph: R,
     /// Checks that failed (empty when all is well).
-    pub checks: Vec<DoseCheck<R>, 3>,
+    pub checks: Vec<DoseCheck<R>, MAX_CHECKS>,
 }
 
 impl<R: Real> DosePlan<R> {
@@ -579,9 +622,31 @@ pub fn plan<R: Real, const N: usize, const M: usize>(
     let m = Mixing { influent, influent_flow_l_per_h, influent_eq, reagent: &reagent };
     let core = m.core(x)?;
 
-    // At most three checks, one of each kind, so the pushes below cannot overflow the
-    // capacity of 3 (asserted in debug and test builds).
-    let mut checks: Vec<DoseCheck<R>, 3> = Vec::new();
+    // At most one check of each kind, so the pushes below cannot overflow the capacity of
+    // MAX_CHECKS (asserted in debug and test builds).
+    let mut checks: Vec<DoseCheck<R>, MAX_CHECKS> = Vec::new();
+    // Hazards first: a plan that releases a gas or starves on a frozen reagent is refused
+    // whatever else it says.
+    if x < influent_eq.ph {
+        let mixture = influent.mix(influent_flow_l_per_h, &reagent, core.flow).map_err(DoseError::Composition)?;
+        for release in hazard::gas_releases(&mixture, x).into_iter().flatten() {
+            let pushed = checks.push(DoseCheck::GasRelease {
+                gas: release.gas,
+                release_below_ph: release.release_below_ph,
+                gas_fraction: release.gas_fraction,
+            });
+            debug_assert!(pushed.is_ok());
+        }
+    }
+    if let Some(stock) = request.reagent_stock
+        && let Some(crystallises_below_c) = hazard::crystallises(&stock)
+    {
+        let pushed = checks.push(DoseCheck::ReagentCrystallises {
+            crystallises_below_c,
+            reagent_temperature_c: stock.temperature_c(),
+        });
+        debug_assert!(pushed.is_ok());
+    }
     let mut gain_ph_per_step = None;
     if let Some(pump) = request.pump {
         if core.flow > pump.max_l_per_h {

@@ -1,12 +1,14 @@
 //! Titration and dose models on top of [`crate::chem`]: streams and mixing ([`stream`]),
 //! commercial reagents ([`reagent`]), titration curves and equivalence points ([`curve`]), the
 //! dose for a setpoint with process gain and boot checks ([`dose`]), alkalinity ([`alkalinity`]),
-//! influent characterisation by Levenberg–Marquardt ([`fit`]) and stage advice ([`stages`]).
+//! influent characterisation by Levenberg–Marquardt ([`fit`]), stage advice ([`stages`]) and
+//! the hazards no pH check sees: gas release, reagent crystallisation ([`hazard`]).
 
 pub mod alkalinity;
 pub mod curve;
 pub mod dose;
 pub mod fit;
+pub mod hazard;
 pub mod reagent;
 pub mod stages;
 pub mod stream;

@@ -95,6 +95,16 @@ const BAD: &[(&str, Edit, Code)] = &[
     ("hourly limit below the design dose", |s| s.caustic.as_mut().unwrap().max_per_hour_l = 0.1, Code::OverdoseGuard),
     ("unknown density", |s| s.caustic.as_mut().unwrap().mass_percent = 27.0, Code::ReagentStrength),
     (
+        "acid onto hypochlorite to pH 3",
+        |s| acid_skid(s, &[("NaOCl", 0.01), ("NaCl", 0.01)], "HCl", 32.0, 3.0),
+        Code::ChlorineRelease,
+    ),
+    (
+        "acid onto sulfide to pH 5",
+        |s| acid_skid(s, &[("NaHS", 0.002), ("NaOH", 0.002)], "H2SO4", 96.0, 5.0),
+        Code::HydrogenSulfideRelease,
+    ),
+    (
         "pump of zero stroke",
         |s| {
             s.caustic.as_mut().unwrap().pump =
@@ -103,6 +113,40 @@ const BAD: &[(&str, Edit, Code)] = &[
         Code::PumpSettings,
     ),
 ];
+
+/// Turns the example into an acid-dosing skid: the influent replaced by `dissolved`, the caustic
+/// by `substance` at `mass_percent` on the same pump, the setpoint moved to `setpoint_ph`.
+/// (Invented: the cleaning-station effluent of a fictional dairy, the scrubber bleed of a
+/// fictional tannery.)
+fn acid_skid(s: &mut Skid, dissolved: &[(&str, f32)], substance: &str, mass_percent: f32, setpoint_ph: f32) {
+    s.influent.dissolved.clear();
+    for (f, c) in dissolved {
+        let _ = s.influent.dissolved.insert(crate::config::Formula::try_from(*f).unwrap(), *c);
+    }
+    let mut acid = s.caustic.take().unwrap();
+    acid.substance = crate::config::Formula::try_from(substance).unwrap();
+    acid.mass_percent = mass_percent;
+    s.acid = Some(acid);
+    s.control.setpoint_ph = setpoint_ph;
+}
+
+#[test]
+fn gas_release_is_judged_at_the_setpoint_and_reported_once() {
+    // Hypochlorite water acidified only to pH 8: far above where Cl2 appears.
+    let mut mild = example::plating_rinse();
+    acid_skid(&mut mild, &[("NaOCl", 0.01), ("NaCl", 0.01)], "HCl", 32.0, 8.0);
+    for r in [check::<f32>(&mild), check::<f64>(&mild)] {
+        assert!(!r.has(Code::ChlorineRelease), "{r:?}");
+    }
+    // To pH 3 it is refused, once (at the design flow), with the setpoint and the release pH.
+    let mut sharp = example::plating_rinse();
+    acid_skid(&mut sharp, &[("NaOCl", 0.01), ("NaCl", 0.01)], "HCl", 32.0, 3.0);
+    let r = check::<f32>(&sharp);
+    let found: std::vec::Vec<_> = r.errors.iter().filter(|f| f.code == Code::ChlorineRelease).collect();
+    assert_eq!(found.len(), 1, "{r:?}");
+    assert_eq!((found[0].name, found[0].value), ("acid", 3.0));
+    assert!(found[0].limit > 3.0 && found[0].limit < 7.5, "{:?}", found[0]);
+}
 
 #[test]
 fn bad_configurations_are_refused_with_their_code() {
@@ -147,7 +191,7 @@ fn every_single_bit_flip_of_the_blob_is_refused_by_the_boot_check() {
 fn codes_are_stable_and_messages_carry_the_numbers() {
     let numbers = Code::ALL.map(Code::number);
     assert!(numbers.windows(2).all(|w| w[0] < w[1]), "{numbers:?}");
-    assert_eq!(numbers.iter().filter(|n| **n < 300).count(), 18);
+    assert_eq!(numbers.iter().filter(|n| **n < 300).count(), 20);
     let f = Finding::named(Code::BeyondPump, "caustic", 12.5, 10.0);
     assert_eq!(std::format!("{f}"), "210: dose exceeds the pump's maximum (caustic): 12.5 (limit 10)");
     assert!(Code::BeyondPump.is_error() && !Code::SingleProbe.is_error());

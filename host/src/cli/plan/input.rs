@@ -1,5 +1,6 @@
 //! What `plan` is asked: influent, reagent, setpoint, pump and band, from JSON or flags.
 
+use phdose::titration::hazard;
 use phdose::titration::{DoseRequest, Pump};
 use phdose::units::{InvalidInput, LitresPerHour, Quantity};
 use serde::Deserialize;
@@ -31,6 +32,8 @@ pub struct PlanInput {
     pub pump: Option<Pump<f64>>,
     /// Control band (full width), pH, if given.
     pub band_ph: Option<f64>,
+    /// Temperature of the reagent's tank and lines, °C, if given (else the influent's).
+    pub reagent_temperature_c: Option<f64>,
 }
 
 #[derive(Deserialize)]
@@ -47,6 +50,8 @@ struct Request {
     pump: Option<PumpJson>,
     #[serde(default)]
     band_ph: Option<f64>,
+    #[serde(default)]
+    reagent_temperature_c: Option<f64>,
 }
 
 #[derive(Deserialize)]
@@ -89,7 +94,30 @@ impl PlanInput {
     ) -> Result<Self, CliError> {
         LitresPerHour::new(flow_l_per_h).and_then(|f| f.positive(Quantity::InfluentFlow)).map_err(invalid)?;
         let request = DoseRequest::checked(setpoint_ph, pump, band_ph).map_err(invalid)?;
-        Ok(Self { conditions, influent, flow_l_per_h, reagent, setpoint_ph, pump: request.pump, band_ph })
+        Ok(Self {
+            conditions,
+            influent,
+            flow_l_per_h,
+            reagent,
+            setpoint_ph,
+            pump: request.pump,
+            band_ph,
+            reagent_temperature_c: None,
+        })
+    }
+
+    /// The same input with the reagent's tank temperature, checked by the core's stock
+    /// constructor (the error names the field and the value).
+    pub fn with_reagent_temperature(self, celsius: Option<f64>) -> Result<Self, CliError> {
+        if let Some(t) = celsius {
+            hazard::storage_celsius(t).map_err(|e| CliError::new(format!("reagent_temperature_c: {e}")))?;
+        }
+        Ok(Self { reagent_temperature_c: celsius, ..self })
+    }
+
+    /// The reagent's tank temperature: the one given, else the influent's, °C.
+    pub fn reagent_celsius(&self) -> f64 {
+        self.reagent_temperature_c.unwrap_or(self.conditions.celsius())
     }
 
     /// From the JSON request text.
@@ -99,7 +127,8 @@ impl PlanInput {
         let influent = composition::resolve(r.influent.dissolved.0, "influent")?;
         let reagent = Reagent::from_json(r.reagent, "reagent")?;
         let pump = r.pump.map(|p| (p.max_l_per_h, p.step_l_per_h));
-        Self::new(conditions, influent, r.influent.flow_l_per_h, reagent, r.setpoint_ph, pump, r.band_ph)
+        Self::new(conditions, influent, r.influent.flow_l_per_h, reagent, r.setpoint_ph, pump, r.band_ph)?
+            .with_reagent_temperature(r.reagent_temperature_c)
     }
 
     /// From the command line: influent `SUBSTANCE=MOL_PER_L` arguments and the options; with
@@ -135,7 +164,8 @@ impl PlanInput {
             }
         };
         let band = a.band_ph.or(default(example::BAND_PH));
-        Self::new(conditions, influent, flow, reagent, setpoint, pump, band)
+        Self::new(conditions, influent, flow, reagent, setpoint, pump, band)?
+            .with_reagent_temperature(a.reagent_temperature_c)
     }
 }
 

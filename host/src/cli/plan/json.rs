@@ -4,6 +4,7 @@
 use std::collections::BTreeMap;
 
 use phdose::titration::DoseCheck;
+use phdose::titration::hazard;
 use serde::Serialize;
 
 use super::report::{PlanReport, Unreachable};
@@ -42,14 +43,39 @@ struct Output {
     activity: &'static str,
     notes: Vec<String>,
     caution: String,
+    hazard: bool,
+    reagent_temperature_c: Num,
 }
 
 #[derive(Serialize)]
 #[serde(tag = "kind", rename_all = "snake_case")]
 enum CheckOut {
-    BeyondPump { needed_l_per_h: Num, max_l_per_h: Num },
-    TooSteep { step_delta_ph: Num, band_ph: Num, dilute_reagent_by: Num, nearest_controllable_setpoint_ph: Option<Num> },
-    ResolutionLimited { resolution_ph: Num, needed_ph: Num },
+    BeyondPump {
+        needed_l_per_h: Num,
+        max_l_per_h: Num,
+    },
+    TooSteep {
+        step_delta_ph: Num,
+        band_ph: Num,
+        dilute_reagent_by: Num,
+        nearest_controllable_setpoint_ph: Option<Num>,
+    },
+    ResolutionLimited {
+        resolution_ph: Num,
+        needed_ph: Num,
+    },
+    GasRelease {
+        gas: &'static str,
+        gas_name: &'static str,
+        release_below_ph: Num,
+        gas_fraction: Num,
+        basis: &'static str,
+    },
+    ReagentCrystallises {
+        crystallises_below_c: Num,
+        reagent_temperature_c: Num,
+        source: &'static str,
+    },
 }
 
 #[derive(Serialize)]
@@ -73,6 +99,13 @@ struct StagesOut {
 struct PumpOut {
     max_l_per_h: Num,
     step_l_per_h: Num,
+}
+
+/// The source of the crystallisation row that applies to the request's reagent grade.
+fn crystallisation_source(i: &super::input::PlanInput) -> &'static str {
+    let formula = i.reagent.dissolved.first().map(|d| d.substance.formula);
+    let grade = i.reagent.grade.as_ref().map(|g| g.mass_percent);
+    formula.zip(grade).and_then(|(f, w)| hazard::crystallisation_c(f, w)).map_or("", |(_, row)| row.source)
 }
 
 /// Renders the report as the JSON document.
@@ -117,6 +150,20 @@ pub fn render(r: &PlanReport) -> Result<String, CliError> {
                         DoseCheck::ResolutionLimited { resolution_ph, needed_ph } => {
                             CheckOut::ResolutionLimited { resolution_ph: Num(resolution_ph), needed_ph: Num(needed_ph) }
                         }
+                        DoseCheck::GasRelease { gas, release_below_ph, gas_fraction } => CheckOut::GasRelease {
+                            gas: gas.formula(),
+                            gas_name: gas.name(),
+                            release_below_ph: Num(release_below_ph),
+                            gas_fraction: Num(gas_fraction),
+                            basis: gas.basis(),
+                        },
+                        DoseCheck::ReagentCrystallises { crystallises_below_c, reagent_temperature_c } => {
+                            CheckOut::ReagentCrystallises {
+                                crystallises_below_c: Num(crystallises_below_c),
+                                reagent_temperature_c: Num(reagent_temperature_c),
+                                source: crystallisation_source(i),
+                            }
+                        }
                     })
                     .collect()
             })
@@ -141,6 +188,8 @@ pub fn render(r: &PlanReport) -> Result<String, CliError> {
         activity: i.conditions.activity_name(),
         notes: r.notes.clone(),
         caution: PLAN_CAUTION.replace('\n', " "),
+        hazard: r.hazard(),
+        reagent_temperature_c: Num(i.reagent_celsius()),
     };
     json::render(&out)
 }

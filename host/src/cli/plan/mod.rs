@@ -22,7 +22,13 @@ The influent (SUBSTANCE=MOL_PER_L) flows at --flow-l-per-h into a mixing point w
 reagent is dosed. --reagent takes NAME=MOL_PER_L[,NAME=MOL_PER_L...] or NAME=PERCENT% (one
 substance as bought; the density comes from --reagent-density or, for NaOH 25/50 %, HCl 32/36 %
 and H2SO4 96/98 %, from the built-in grade table at 20 °C). The reagent is taken at the influent's
-temperature. --example: the rinse-water neutralization skid of a fictional plating shop (18 °C,
+temperature; --reagent-temperature-c gives its tank's temperature for the crystallisation check
+(default: the influent's).
+
+Hazard checks (error level; SAFETY.md lists them with their sources): acid dosed to a setpoint
+below the pH where chlorine (Cl2, from hypochlorite) or hydrogen sulfide (H2S, from sulfide) is
+released: the gas-forming species above 1 % of its total, computed from the speciation; a reagent
+grade stored below its crystallisation temperature (table with sources). --example: the rinse-water neutralization skid of a fictional plating shop (18 °C,
 1200 L/h, 25 % caustic, pump 10 L/h with 0.01 L/h steps, band 0.3 pH); any option, or --no-pump,
 changes it.
 
@@ -37,12 +43,15 @@ JSON request (temperature_c, activity, pump and band_ph optional):
 JSON result (stable keys first):
   reachable (bool), reagent_flow_l_per_h (L/h, null when unreachable), mixture_buffer_capacity
   (mol/L per pH, at the setpoint), gain_ph_per_l_per_h (pH per L/h), verdicts (readable strings:
-  \"ok\", \"unreachable: ...\", \"beyond pump capacity: ...\", \"too steep: ...\").
+  \"ok\", \"unreachable: ...\", \"beyond pump capacity: ...\", \"too steep: ...\", \"HAZARD ...\").
   Also: all_clear, setpoint_ph, influent_ph, influent_flow_l_per_h, influent_dissolved (formula ->
   mol/L), gain_ph_per_step (pH change of one pump step, a real solve), reagent_mol_per_l
   (one-substance reagents), reagent, mixture_ionic_strength, rounds, checks [{kind:
-  beyond_pump|too_steep, ...}], unreachable ({kind: wrong_direction|beyond_reagent, limit_ph} or
-  null), stage_advice, pump, band_ph, temperature_c, activity, notes, caution.
+  beyond_pump|too_steep|resolution_limited|gas_release|reagent_crystallises, ...}], unreachable
+  ({kind: wrong_direction|beyond_reagent, limit_ph} or null), stage_advice, pump, band_ph,
+  temperature_c, activity, notes, caution, hazard (bool), reagent_temperature_c.
+  gas_release: gas (\"Cl2\"|\"H2S\"), gas_name, release_below_ph, gas_fraction (at the setpoint),
+  basis; reagent_crystallises: crystallises_below_c, reagent_temperature_c, source.
 
 Exit codes: 0 when a plan was worked out, whatever the verdicts (check `reachable` and
 `all_clear`); 2 for input and solver errors.
@@ -85,6 +94,10 @@ pub struct Args {
     /// Control band (full width), pH
     #[arg(long, value_name = "PH", value_parser = value::finite_number, allow_negative_numbers = true)]
     pub band_ph: Option<f64>,
+    /// Temperature of the reagent's tank and lines, °C (-60 to 100), for the crystallisation
+    /// check [default: the influent's]
+    #[arg(long, value_name = "C", value_parser = value::finite_number, allow_negative_numbers = true)]
+    pub reagent_temperature_c: Option<f64>,
     /// Plan without a pump (drops the example's pump and the pump checks)
     #[arg(long, conflicts_with_all = ["pump_max_l_per_h", "pump_step_l_per_h"])]
     pub no_pump: bool,
@@ -101,8 +114,14 @@ pub struct Args {
 impl Args {
     /// Whether any part of a request was given on the command line.
     fn has_request(&self) -> bool {
-        let numbers =
-            [self.flow_l_per_h, self.setpoint_ph, self.pump_max_l_per_h, self.pump_step_l_per_h, self.band_ph];
+        let numbers = [
+            self.flow_l_per_h,
+            self.setpoint_ph,
+            self.pump_max_l_per_h,
+            self.pump_step_l_per_h,
+            self.band_ph,
+            self.reagent_temperature_c,
+        ];
         !self.influent.is_empty()
             || self.reagent.is_some()
             || self.no_pump

@@ -1,5 +1,6 @@
 //! Solving a `plan` request: influent and reagent → feed-forward plan, verdicts and stage advice.
 
+use phdose::titration::hazard::{self, Gas, ReagentStock};
 use phdose::titration::stages::{self, StageAdvice};
 use phdose::titration::{DoseCheck, DoseError, DosePlan, DoseRequest, dose};
 use phdose::units::LitresPerHour;
@@ -50,6 +51,11 @@ impl PlanReport {
     pub fn all_clear(&self) -> bool {
         self.plan.as_ref().is_some_and(DosePlan::all_clear)
     }
+
+    /// A hazard check failed (gas release, crystallisation): the plan must not be used.
+    pub fn hazard(&self) -> bool {
+        self.plan.as_ref().is_some_and(|p| p.checks.iter().any(DoseCheck::is_hazard))
+    }
 }
 
 /// The readable verdict for a failed check.
@@ -75,6 +81,29 @@ pub fn check_verdict(check: &DoseCheck<f64>, setpoint_ph: f64) -> String {
             sig(resolution_ph, 2),
             sig(needed_ph, 2)
         ),
+        DoseCheck::GasRelease { gas, release_below_ph, gas_fraction } => format!(
+            "HAZARD {} ({}): acid to pH {} releases it from the influent's {}: significant below pH {} \
+             ({} % of the {} as {} at the setpoint); keep the setpoint above pH {} or remove the {} first",
+            gas.name(),
+            gas.formula(),
+            fixed(setpoint_ph, 2),
+            gas.from_system(),
+            fixed(release_below_ph, 2),
+            sig(100.0 * gas_fraction, 2),
+            match gas {
+                Gas::Chlorine => "free chlorine",
+                Gas::HydrogenSulfide => "sulfide",
+            },
+            gas.formula(),
+            fixed(release_below_ph, 2),
+            gas.from_system()
+        ),
+        DoseCheck::ReagentCrystallises { crystallises_below_c, reagent_temperature_c } => format!(
+            "HAZARD reagent crystallises: this grade crystallises below {} °C and its tank is at {} °C; lines and \
+             pump heads block; trace-heat tank and lines or choose a weaker grade",
+            sig(crystallises_below_c, 3),
+            sig(reagent_temperature_c, 3)
+        ),
     }
 }
 
@@ -86,9 +115,23 @@ pub fn compute(input: PlanInput) -> Result<PlanReport, CliError> {
     let reagent = input.reagent.solution(c, "reagent")?;
     let influent_eq = influent.solve().map_err(|e| CliError::new(format!("influent: pH solver: {e}")))?;
     // The input was checked by `PlanInput::new` with the same constructors: these cannot fail.
-    let request =
+    let mut request =
         DoseRequest::checked(input.setpoint_ph, input.pump.map(|p| (p.max_l_per_h(), p.step_l_per_h())), input.band_ph)
             .map_err(|e| CliError::new(format!("plan request: {e}")))?;
+    let mut stock_notes = Vec::new();
+    // The crystallisation check needs the grade as bought (one substance, mass percent).
+    if let (Some(grade), [only]) = (&input.reagent.grade, input.reagent.dissolved.as_slice()) {
+        let formula = only.substance.formula;
+        let stock = ReagentStock::new(formula, grade.mass_percent, input.reagent_celsius())
+            .map_err(|e| CliError::new(format!("reagent: {e}")))?;
+        request = request.with_reagent_stock(stock);
+        if hazard::crystallisation_c(formula, grade.mass_percent).is_none() {
+            stock_notes.push(format!(
+                "no crystallisation data for {formula} {} %: that check was skipped (the SDS governs)",
+                sig(grade.mass_percent, 4)
+            ));
+        }
+    }
     let flow = LitresPerHour::new(input.flow_l_per_h).map_err(|e| CliError::new(format!("influent: {e}")))?;
 
     let mut verdicts = Vec::new();
@@ -126,6 +169,16 @@ pub fn compute(input: PlanInput) -> Result<PlanReport, CliError> {
         (false, false) => notes.push("no pump and no band_ph: the pump and steepness checks were skipped".to_owned()),
         (true, true) => {}
     }
+    if input.reagent_temperature_c.is_none()
+        && plan.as_ref().is_some_and(|p| p.checks.iter().any(|c| matches!(c, DoseCheck::ReagentCrystallises { .. })))
+    {
+        notes.push(
+            "the reagent's tank was taken at the influent's temperature; give reagent_temperature_c \
+             (--reagent-temperature-c) if it is kept elsewhere"
+                .to_owned(),
+        );
+    }
+    notes.extend(stock_notes);
     let stages = stages::advise(influent_eq.ph, influent_eq.ph, input.setpoint_ph).ok();
     Ok(PlanReport { influent_ph: influent_eq.ph, plan, unreachable, verdicts, stages, notes, input })
 }
@@ -157,5 +210,18 @@ mod tests {
             nearest_controllable_setpoint_ph: None,
         };
         assert!(check_verdict(&none, 7.0).contains("no setpoint within 2 pH of 7.0"));
+    }
+
+    #[test]
+    fn hazard_wording_names_the_gas_and_the_ph() {
+        let cl = DoseCheck::GasRelease { gas: Gas::Chlorine, release_below_ph: 3.754, gas_fraction: 0.054 };
+        let v = check_verdict(&cl, 3.0);
+        assert!(v.starts_with("HAZARD chlorine (Cl2): acid to pH 3.00"), "{v}");
+        assert!(v.contains("below pH 3.75") && v.contains("5.4 % of the free chlorine"), "{v}");
+        let h2s = DoseCheck::GasRelease { gas: Gas::HydrogenSulfide, release_below_ph: 8.98, gas_fraction: 0.99 };
+        assert!(check_verdict(&h2s, 5.0).starts_with("HAZARD hydrogen sulfide (H2S)"));
+        let cold = DoseCheck::ReagentCrystallises { crystallises_below_c: 15.0, reagent_temperature_c: 1.0 };
+        assert!(check_verdict(&cold, 7.0).contains("crystallises below 15 °C and its tank is at 1 °C"));
+        assert!([cl, h2s, cold].iter().all(DoseCheck::is_hazard));
     }
 }

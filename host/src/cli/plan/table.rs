@@ -2,6 +2,8 @@
 
 use std::fmt::Write;
 
+use phdose::titration::DoseCheck;
+
 use super::report::PlanReport;
 use crate::cli::caution::PLAN_CAUTION;
 use crate::cli::composition;
@@ -70,6 +72,13 @@ pub fn render(r: &PlanReport, title: Option<&str>) -> String {
     for (k, v) in r.verdicts.iter().enumerate() {
         let label = if k == 0 { "verdict" } else { "" };
         let _ = writeln!(s, "{label:<LABEL$}{v}");
+    }
+    if let Some(p) = &r.plan {
+        for check in &p.checks {
+            if let DoseCheck::GasRelease { gas, .. } = check {
+                let _ = writeln!(s, "{:<LABEL$}{}: {}", "hazard basis", gas.formula(), gas.basis());
+            }
+        }
     }
     for n in &r.notes {
         let _ = writeln!(s, "{:<LABEL$}{n}", "note");
