@@ -1,6 +1,7 @@
 //! Titration and dose models on top of [`crate::chem`]: streams and mixing ([`stream`]),
 //! commercial reagents ([`reagent`]), titration curves and equivalence points ([`curve`]), the
-//! dose for a setpoint with process gain and boot checks ([`dose`]), alkalinity ([`alkalinity`]),
+//! dose for a setpoint with process gain and boot checks ([`dose`]) and their remedies
+//! ([`remedy`]), alkalinity ([`alkalinity`]),
 //! influent characterisation by Levenberg–Marquardt ([`fit`]) and stage advice ([`stages`]).
 
 pub mod alkalinity;
@@ -8,9 +9,10 @@ pub mod curve;
 pub mod dose;
 pub mod fit;
 pub mod reagent;
+pub mod remedy;
 pub mod stages;
 pub mod stream;
 
 pub use curve::{CurvePoint, EquivalencePoint, Titration, inflections};
-pub use dose::{DoseCheck, DoseError, DosePlan, DoseRequest, Pump, plan};
+pub use dose::{DoseCheck, DoseError, DosePlan, DoseRequest, InBand, Pump, plan};
 pub use stream::Stream;
