@@ -84,6 +84,10 @@ impl<R: Real> Celsius<R> {
 
 /// Highest flow accepted anywhere, L/h (a sanity bound: 10⁷ L/h = 10 000 m³/h).
 pub const MAX_FLOW_L_PER_H: f64 = 1e7;
+/// Lowest influent flow a plan accepts, L/h: 1 mL/h. A sanity bound
+/// (common practice, no source): below it a "stream" is drops, and the closed form's gain
+/// (inversely proportional to the flow) runs to absurd values (1e303 pH per L/h at 1e-300 L/h).
+pub const MIN_PLANNED_FLOW_L_PER_H: f64 = 1e-3;
 /// Lowest and highest pH a setpoint or a pH input may have.
 pub const PH_SCALE: (f64, f64) = (0.0, 14.0);
 
@@ -96,12 +100,14 @@ pub enum Quantity {
     Ph,
     /// A flow, L/h: 0–[`MAX_FLOW_L_PER_H`].
     Flow,
-    /// An influent flow to plan for, L/h: above 0, up to [`MAX_FLOW_L_PER_H`].
+    /// An influent flow to plan for, L/h: [`MIN_PLANNED_FLOW_L_PER_H`]–[`MAX_FLOW_L_PER_H`].
     InfluentFlow,
     /// A pump's maximum flow, L/h: above 0, up to [`MAX_FLOW_L_PER_H`].
     PumpMax,
     /// A pump's step (resolution), L/h: above 0, up to the pump's maximum.
     PumpStep,
+    /// A pump's lowest steady flow, L/h: 0 up to the pump's maximum.
+    PumpMin,
     /// A width on the pH scale (a control band), pH: above 0, up to 14.
     PhWidth,
 }
@@ -112,9 +118,10 @@ impl Quantity {
         match self {
             Self::Ph => ("pH", "0-14"),
             Self::Flow => ("flow", "0-1e7 L/h"),
-            Self::InfluentFlow => ("influent flow", "above 0, up to 1e7 L/h"),
+            Self::InfluentFlow => ("influent flow", "1e-3 to 1e7 L/h"),
             Self::PumpMax => ("pump maximum", "above 0, up to 1e7 L/h"),
             Self::PumpStep => ("pump step", "above 0, up to the pump maximum"),
+            Self::PumpMin => ("pump minimum", "0 up to the pump maximum"),
             Self::PhWidth => ("pH band", "above 0, up to 14 pH"),
         }
     }
@@ -199,6 +206,12 @@ impl<R: Real> LitresPerHour<R> {
     pub fn positive(self, quantity: Quantity) -> Result<Self, InvalidInput> {
         within(quantity, self.0, 0.0, MAX_FLOW_L_PER_H, true).map(Self)
     }
+
+    /// `Ok` when the flow is at least [`MIN_PLANNED_FLOW_L_PER_H`] (an influent flow to plan
+    /// for); else the error for `quantity` with this value.
+    pub fn plannable(self, quantity: Quantity) -> Result<Self, InvalidInput> {
+        within(quantity, self.0, MIN_PLANNED_FLOW_L_PER_H, MAX_FLOW_L_PER_H, false).map(Self)
+    }
 }
 
 #[cfg(test)]
@@ -228,6 +241,13 @@ mod tests {
         assert!(LitresPerHour::new(0.0_f64).is_ok());
         assert_eq!(LitresPerHour::new(-1.0_f64), Err(InvalidInput { quantity: Quantity::Flow, value: -1.0 }));
         assert!(LitresPerHour::new(1e7_f64).is_ok() && LitresPerHour::new(1.1e7_f64).is_err());
+        // Finding: 1e-300 L/h passed as a flow to plan with; now refused with its value.
+        let tiny = LitresPerHour::new(1e-300_f64).unwrap();
+        assert_eq!(
+            tiny.plannable(Quantity::InfluentFlow),
+            Err(InvalidInput { quantity: Quantity::InfluentFlow, value: 1e-300 })
+        );
+        assert!(LitresPerHour::new(MIN_PLANNED_FLOW_L_PER_H).unwrap().plannable(Quantity::InfluentFlow).is_ok());
         let zero = LitresPerHour::new(0.0_f64).unwrap();
         assert_eq!(
             zero.positive(Quantity::InfluentFlow),

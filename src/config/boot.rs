@@ -15,7 +15,8 @@
 //!    maximum flow a warning); the design dose at the maximum flow within the hourly overdose
 //!    limit (else the guard would trip in normal operation); at the design flow, acid dosed to
 //!    the setpoint must not release chlorine or hydrogen sulfide from the influent (errors 219,
-//!    220; see [`crate::titration::hazard`]);
+//!    220; see [`crate::titration::hazard`]); a dose above zero but below the pump's smallest
+//!    steady flow (its minimum or one step) is a warning (305);
 //! 5. the probes: one to three, each calibration accepted (slope and offset, see
 //!    [`crate::probe`]); old calibrations and a single probe are warnings.
 //!
@@ -91,11 +92,14 @@ pub enum Code {
     ResolutionLimited,
     /// 304: a single probe: no redundancy, no disagreement alarm.
     SingleProbe,
+    /// 305: the dose at a configured flow is above zero but below the pump's smallest steady
+    /// flow (its minimum or one step; see `DoseCheck::BelowTurndown`): the pump can only pulse it.
+    BelowTurndown,
 }
 
 impl Code {
     /// Every code, errors (2xx) then warnings (3xx), in number order.
-    pub const ALL: [Self; 24] = [
+    pub const ALL: [Self; 25] = [
         Self::BlobUnreadable,
         Self::SettingOutOfRange,
         Self::FlowsInconsistent,
@@ -120,6 +124,7 @@ impl Code {
         Self::TooSteepAtFlowLimit,
         Self::ResolutionLimited,
         Self::SingleProbe,
+        Self::BelowTurndown,
     ];
 
     /// The stable numeric code.
@@ -149,6 +154,7 @@ impl Code {
             Self::TooSteepAtFlowLimit => 302,
             Self::ResolutionLimited => 303,
             Self::SingleProbe => 304,
+            Self::BelowTurndown => 305,
         }
     }
 
@@ -186,6 +192,7 @@ impl Code {
             Self::TooSteepAtFlowLimit => "one pump step moves the pH more than the band at a flow limit",
             Self::ResolutionLimited => "working precision cannot resolve the plan",
             Self::SingleProbe => "single probe: no redundancy",
+            Self::BelowTurndown => "dose below the pump's smallest steady flow (minimum or one step)",
         }
     }
 }
@@ -486,11 +493,19 @@ fn dose_checks<R: Real>(
         return;
     };
     let Ok(drive) = build::pump::<R>(&settings.pump) else { return };
-    let Ok(request) = DoseRequest::checked(sp, Some((drive.max_l_per_h(), drive.step_l_per_h())), Some(r(c.band_ph)))
+    let Ok(mut request) =
+        DoseRequest::checked(sp, Some((drive.max_l_per_h(), drive.step_l_per_h())), Some(r(c.band_ph)))
     else {
         return;
     };
-    for (flow, at_design) in [(i.design_flow_l_per_h, true), (i.min_flow_l_per_h, false), (i.max_flow_l_per_h, false)] {
+    // The pump's minimum (an analog pump's minimum duty) enters the turndown check; a minimum
+    // the pump refuses (it cannot: min_duty ≤ 0.5) keeps the pump and its other checks.
+    request.pump = request.pump.map(|p| p.with_minimum(drive.min_l_per_h()).unwrap_or(p));
+    for (flow, at_design, key) in [
+        (i.design_flow_l_per_h, true, "influent.design_flow_l_per_h"),
+        (i.min_flow_l_per_h, false, "influent.min_flow_l_per_h"),
+        (i.max_flow_l_per_h, false, "influent.max_flow_l_per_h"),
+    ] {
         let Ok(q) = LitresPerHour::new(r::<R>(flow)) else { continue };
         match plan(influent, q, &reagent.solution, &request) {
             Ok(p) => {
@@ -508,6 +523,14 @@ fn dose_checks<R: Real>(
                             step_delta_ph.to_f64(),
                             band_ph.to_f64(),
                         )),
+                        DoseCheck::BelowTurndown { needed_l_per_h, smallest_l_per_h, .. } => {
+                            report.push(Finding::named(
+                                Code::BelowTurndown,
+                                name,
+                                needed_l_per_h.to_f64(),
+                                smallest_l_per_h.to_f64(),
+                            ))
+                        }
                         DoseCheck::ResolutionLimited { resolution_ph, needed_ph } => report.push(Finding::named(
                             Code::ResolutionLimited,
                             name,
@@ -540,6 +563,9 @@ fn dose_checks<R: Real>(
                     }
                 }
             }
+            // A flow too small to plan with (below `units::MIN_PLANNED_FLOW_L_PER_H`): the
+            // setting is out of range, an error like any other.
+            Err(DoseError::Input(e)) => report.push(Finding::setting(key, e.value)),
             Err(e) => {
                 let limit = match e {
                     DoseError::BeyondReagent { limit_ph, .. } => limit_ph,

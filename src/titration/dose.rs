@@ -32,14 +32,20 @@ pub const SCAN_LOWEST_LOG10_RATIO: f64 = -9.0;
 pub const SETPOINT_SCAN_STEPS: u32 = 20;
 /// Spacing of that scan, pH.
 pub const SETPOINT_SCAN_SPACING_PH: f64 = 0.1;
+/// A pump step whose pH change is below this many times the solver's pH tolerance is taken from
+/// the linear gain: the real solve cannot resolve it (its sign is noise), and at that size the
+/// linear gain is exact to first order.
+pub const LINEAR_STEP_TOLERANCES: f64 = 100.0;
 
 /// A metering pump, checked at construction: maximum above 0 and at most
-/// [`crate::units::MAX_FLOW_L_PER_H`] L/h, step above 0 and at most the maximum.
+/// [`crate::units::MAX_FLOW_L_PER_H`] L/h, step above 0 and at most the maximum, lowest steady
+/// flow 0 (the default) up to the maximum.
 #[derive(Clone, Copy, Debug, PartialEq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct Pump<R: Real> {
     max_l_per_h: R,
     step_l_per_h: R,
+    min_l_per_h: R,
 }
 
 impl<R: Real> Pump<R> {
@@ -53,7 +59,28 @@ impl<R: Real> Pump<R> {
         if !(step.is_finite() && step > 0.0 && step_l_per_h <= max.l_per_h()) {
             return Err(InvalidInput { quantity: Quantity::PumpStep, value: step });
         }
-        Ok(Self { max_l_per_h, step_l_per_h })
+        Ok(Self { max_l_per_h, step_l_per_h, min_l_per_h: R::ZERO })
+    }
+
+    /// The same pump with a lowest steady flow of `min_l_per_h` L/h (0 up to the maximum;
+    /// e.g. an analog pump's minimum duty times its maximum). The error names the value.
+    pub fn with_minimum(self, min_l_per_h: R) -> Result<Self, InvalidInput> {
+        let min = min_l_per_h.to_f64();
+        if !(min.is_finite() && min >= 0.0 && min_l_per_h <= self.max_l_per_h) {
+            return Err(InvalidInput { quantity: Quantity::PumpMin, value: min });
+        }
+        Ok(Self { min_l_per_h, ..self })
+    }
+
+    /// Lowest steady flow, L/h (0 when not given, ≤ the maximum).
+    pub fn min_l_per_h(&self) -> R {
+        self.min_l_per_h
+    }
+
+    /// Smallest flow the pump delivers steadily, L/h: the larger of its minimum and one step.
+    /// A planned flow above zero but below it is [`DoseCheck::BelowTurndown`].
+    pub fn smallest_l_per_h(&self) -> R {
+        self.min_l_per_h.max(self.step_l_per_h)
     }
 
     /// Highest flow, L/h (> 0).
@@ -121,12 +148,34 @@ pub enum DoseCheck<R: Real> {
         step_delta_ph: R,
         /// The control band's width, pH.
         band_ph: R,
-        /// Dilute the reagent by this factor (within 5 %) to make one step fit the band (a real
-        /// solve: a step of step/factor L/h of this reagent at the planned flow moves the pH by
-        /// no more than the band). Capped at [`MAX_DILUTION`].
+        /// Dilute the reagent by this factor (found to 5 %) and one step fits the band, and the
+        /// diluted reagent's flow is not below the pump's turndown: a real plan of the diluted
+        /// reagent (see [`DoseCheck::BelowTurndown`]). Capped at [`MAX_DILUTION`], which means
+        /// no dilution up to the cap is enough.
         dilute_reagent_by: R,
-        /// Nearest setpoint (within ±2 pH, 0.1 apart) where one step fits the band, if any.
+        /// Flow the diluted reagent needs at this influent flow, L/h; `None` at the cap. Above
+        /// the pump's maximum, the dilution alone is not a remedy: it needs a pump this big.
+        diluted_flow_l_per_h: Option<R>,
+        /// Coarsest pump step (L/h) with which this reagent at the planned flow moves the pH by
+        /// no more than the band (a real solve), when such a pump also delivers the planned
+        /// flow (within its maximum, not below its minimum or that step); `None` otherwise.
+        max_step_l_per_h: Option<R>,
+        /// Nearest setpoint (within ±2 pH, 0.1 apart) where one step fits the band, the flow
+        /// fits the pump and is not below its turndown, if any.
         nearest_controllable_setpoint_ph: Option<R>,
+    },
+    /// The planned flow is above zero but below the smallest flow the pump delivers steadily
+    /// (its minimum or one step, [`Pump::smallest_l_per_h`]): the pump can only pulse it. Not
+    /// raised when the influent is already in band ([`DosePlan::in_band`]).
+    BelowTurndown {
+        /// Flow the setpoint needs, L/h.
+        needed_l_per_h: R,
+        /// The pump's smallest steady flow, L/h.
+        smallest_l_per_h: R,
+        /// Dilute the reagent by this factor (found to 5 %) and a real plan of it passes the
+        /// pump, turndown and steepness checks; `None` when no dilution up to [`MAX_DILUTION`]
+        /// does.
+        dilute_reagent_by: Option<R>,
     },
     /// The working precision cannot resolve the plan: the mixture's pH at the planned flow is
     /// only known to about `resolution_ph` (see [`crate::chem::Equilibrium::resolution_ph`]),
@@ -170,9 +219,9 @@ impl<R: Real> DoseCheck<R> {
     }
 }
 
-/// Most checks one plan reports: one of each kind (pump, steepness, resolution, two gases,
-/// crystallisation).
-pub const MAX_CHECKS: usize = 6;
+/// Most checks one plan reports: one of each kind (pump, steepness, resolution, turndown, two
+/// gases, crystallisation).
+pub const MAX_CHECKS: usize = 7;
 
 /// A feed-forward plan.
 #[derive(Clone, Debug, PartialEq)]
@@ -204,12 +253,37 @@ pub struct DosePlan<R: Real> {
     pub resolution_ph: R,
     /// Checks that failed (empty when all is well).
     pub checks: Vec<DoseCheck<R>, MAX_CHECKS>,
+    /// The influent's own pH already lies inside the band around the setpoint (a band was
+    /// given): no dose is needed. When the reagent could not reach the setpoint itself, the plan
+    /// is the idle one (flow 0, the influent's own buffer capacity and ionic strength, the gain
+    /// of the first drop, no checks).
+    pub in_band: Option<InBand<R>>,
+}
+
+/// The influent already inside the control band: "no dose needed".
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct InBand<R: Real> {
+    /// The influent's own pH.
+    pub influent_ph: R,
+    /// Lower edge of the band (setpoint − band/2), pH.
+    pub low_ph: R,
+    /// Upper edge of the band (setpoint + band/2), pH.
+    pub high_ph: R,
+    /// Whether this reagent could bring the influent to the setpoint itself (else it only
+    /// moves the pH away from it, or not far enough).
+    pub reagent_reaches_setpoint: bool,
 }
 
 impl<R: Real> DosePlan<R> {
     /// `true` when no check failed.
     pub fn all_clear(&self) -> bool {
         self.checks.is_empty()
+    }
+
+    /// `true` when the influent is already inside the band: no dose is needed.
+    pub fn no_dose_needed(&self) -> bool {
+        self.in_band.is_some()
     }
 }
 
@@ -546,6 +620,46 @@ impl<R: Real, const N: usize, const M: usize> Mixing<'_, R, N, M> {
         Ok(eq.ph - x)
     }
 
+    /// pH change of one pump step up from `flow` at setpoint `x`: the real solve
+    /// ([`Self::step_delta_ph`]), or `gain·step` when both are below
+    /// [`LINEAR_STEP_TOLERANCES`] × the solver's pH tolerance (the real solve's sign is noise
+    /// there; the linear gain is exact to first order).
+    fn step_ph(&self, x: R, flow: R, gain: R, step: R) -> Result<R, DoseError> {
+        let real = self.step_delta_ph(x, flow, step)?;
+        let linear = gain * step;
+        let floor = R::PH_TOLERANCE * R::from_f64(LINEAR_STEP_TOLERANCES);
+        Ok(if real.abs() < floor && linear.abs() < floor { linear } else { real })
+    }
+
+    /// The plan of an influent already in band that this reagent cannot bring to the setpoint:
+    /// no dose, the influent's own buffer capacity and ionic strength, the gain of the first
+    /// drop (signed: it may move the pH away from the setpoint) and, with a pump, the pH
+    /// change of one step from zero. No checks: there is nothing to dose.
+    fn idle(&self, x: R, request: &DoseRequest<R>, in_band: InBand<R>) -> Result<DosePlan<R>, DoseError> {
+        let eq = self.influent_eq;
+        let af = self.influent.activity_factor(eq.ionic_strength_mol_per_l);
+        let gr = self.reagent.evaluate(eq.ph, af).excess;
+        let beta = eq.buffer_capacity_mol_per_l_per_ph;
+        let gain = if beta > R::ZERO { gr / (self.influent_flow_l_per_h * beta) } else { R::ZERO };
+        let gain_ph_per_step = match request.pump {
+            Some(pump) => Some(self.step_ph(eq.ph, R::ZERO, gain, pump.step_l_per_h)?),
+            None => None,
+        };
+        Ok(DosePlan {
+            setpoint_ph: x,
+            reagent_flow_l_per_h: R::ZERO,
+            mixture_buffer_capacity_mol_per_l_per_ph: beta,
+            mixture_ionic_strength_mol_per_l: eq.ionic_strength_mol_per_l,
+            gain_ph_per_l_per_h: gain,
+            gain_ph_per_step,
+            influent_ph: eq.ph,
+            rounds: 0,
+            resolution_ph: eq.resolution_ph,
+            checks: Vec::new(),
+            in_band: Some(in_band),
+        })
+    }
+
     /// Smallest factor f (1–[`MAX_DILUTION`], found to 5 %) such that a step of `step/f` L/h
     /// at the planned flow moves the pH by at most `band`: diluting the reagent f-fold (ignoring
     /// the extra water's volume, small at these flows) gives a pump step that fits the band.
@@ -582,7 +696,7 @@ impl<R: Real, const N: usize, const M: usize> Mixing<'_, R, N, M> {
                 let ok = self
                     .core(candidate)
                     .ok()
-                    .filter(|c| c.flow <= pump.max_l_per_h)
+                    .filter(|c| c.flow <= pump.max_l_per_h && (c.flow == R::ZERO || c.flow >= pump.smallest_l_per_h()))
                     .and_then(|c| self.step_delta_ph(candidate, c.flow, pump.step_l_per_h).ok())
                     .is_some_and(|d| d.abs() <= band);
                 if ok {
@@ -607,20 +721,60 @@ pub const MAX_DILUTION: f64 = 1e6;
 /// own pH in brine, or an out-of-reach setpoint), a bracketed search adds at most
 /// ([`SCAN_POINTS`] + [`MAX_BRACKET_STEPS`] + 3) × [`MAX_FIXED_PH_ROUNDS`] × 2 evaluations (2,240)
 /// and one reagent solve.
-/// Only when the steepness check fails: up to 2·[`SETPOINT_SCAN_STEPS`] more such plans.
+/// Only when the steepness or turndown check fails, the remedies: up to 2·[`SETPOINT_SCAN_STEPS`]
+/// more such plans for the setpoint scan, and at most 2 + [`super::remedy::MAX_DILUTION_HALVINGS`]
+/// plans of a diluted reagent (without remedies) for the dilution.
+///
+/// An influent already inside the band is a plan with [`DosePlan::in_band`] set (see there);
+/// the influent flow must be at least [`crate::units::MIN_PLANNED_FLOW_L_PER_H`].
 pub fn plan<R: Real, const N: usize, const M: usize>(
     influent: &Solution<R, N>,
     influent_flow: LitresPerHour<R>,
     reagent: &Solution<R, M>,
     request: &DoseRequest<R>,
 ) -> Result<DosePlan<R>, DoseError> {
+    plan_with(influent, influent_flow, reagent, request, true)
+}
+
+/// [`plan`], with the remedies of failed checks searched only when `remedies` is true (the
+/// remedy searches plan without them: no recursion). Without remedies a failed check's remedy
+/// fields are `None`, and [`DoseCheck::TooSteep`]'s dilution is 1.
+pub(crate) fn plan_with<R: Real, const N: usize, const M: usize>(
+    influent: &Solution<R, N>,
+    influent_flow: LitresPerHour<R>,
+    reagent: &Solution<R, M>,
+    request: &DoseRequest<R>,
+    remedies: bool,
+) -> Result<DosePlan<R>, DoseError> {
     let x = request.setpoint.ph();
-    let influent_flow_l_per_h = influent_flow.positive(Quantity::InfluentFlow)?.l_per_h();
+    let influent_flow_l_per_h = influent_flow.plannable(Quantity::InfluentFlow)?.l_per_h();
     let mut reagent = reagent.clone();
     reagent.set_temperature(influent.temperature());
     let influent_eq = influent.solve().map_err(DoseError::Solve)?;
+    let in_band = request.band.and_then(|b| {
+        let half = b.ph() * R::from_f64(0.5);
+        let (low_ph, high_ph) = (x - half, x + half);
+        let ph = influent_eq.ph;
+        (ph >= low_ph && ph <= high_ph).then_some(InBand {
+            influent_ph: ph,
+            low_ph,
+            high_ph,
+            reagent_reaches_setpoint: true,
+        })
+    });
     let m = Mixing { influent, influent_flow_l_per_h, influent_eq, reagent: &reagent };
-    let core = m.core(x)?;
+    let core = match (m.core(x), in_band) {
+        (Ok(core), _) => core,
+        (
+            Err(
+                DoseError::WrongDirection { .. }
+                | DoseError::BeyondReagent { .. }
+                | DoseError::BeyondActivityModel { .. },
+            ),
+            Some(band),
+        ) => return m.idle(x, request, InBand { reagent_reaches_setpoint: false, ..band }),
+        (Err(e), _) => return Err(e),
+    };
 
     // At most one check of each kind, so the pushes below cannot overflow the capacity of
     // MAX_CHECKS (asserted in debug and test builds).
@@ -654,17 +808,53 @@ pub fn plan<R: Real, const N: usize, const M: usize>(
                 checks.push(DoseCheck::BeyondPump { needed_l_per_h: core.flow, max_l_per_h: pump.max_l_per_h });
             debug_assert!(pushed.is_ok());
         }
-        let step = m.step_delta_ph(x, core.flow, pump.step_l_per_h)?;
+        let smallest = pump.smallest_l_per_h();
+        if in_band.is_none() && core.flow > R::ZERO && core.flow < smallest {
+            let dilute_reagent_by = if remedies {
+                super::remedy::dilution(influent, influent_flow, &reagent, request)
+                    .filter(|(_, q)| *q <= pump.max_l_per_h)
+                    .map(|(f, _)| f)
+            } else {
+                None
+            };
+            let pushed = checks.push(DoseCheck::BelowTurndown {
+                needed_l_per_h: core.flow,
+                smallest_l_per_h: smallest,
+                dilute_reagent_by,
+            });
+            debug_assert!(pushed.is_ok());
+        }
+        let step = m.step_ph(x, core.flow, core.gain, pump.step_l_per_h)?;
         gain_ph_per_step = Some(step);
         if let Some(band) = request.band.map(PhWidth::ph)
             && step.abs() > band
         {
-            let pushed = checks.push(DoseCheck::TooSteep {
-                step_delta_ph: step.abs(),
-                band_ph: band,
-                dilute_reagent_by: m.dilution_needed(x, core.flow, pump.step_l_per_h, band),
-                nearest_controllable_setpoint_ph: m.nearest_controllable(x, pump, band),
-            });
+            let check = if remedies {
+                let diluted = super::remedy::dilution(influent, influent_flow, &reagent, request);
+                let f = m.dilution_needed(x, core.flow, pump.step_l_per_h, band);
+                let finer = pump.step_l_per_h / f;
+                let finer_fits = f < R::from_f64(MAX_DILUTION)
+                    && core.flow <= pump.max_l_per_h
+                    && core.flow >= pump.min_l_per_h.max(finer);
+                DoseCheck::TooSteep {
+                    step_delta_ph: step.abs(),
+                    band_ph: band,
+                    dilute_reagent_by: diluted.map_or(R::from_f64(MAX_DILUTION), |(f, _)| f),
+                    diluted_flow_l_per_h: diluted.map(|(_, q)| q),
+                    max_step_l_per_h: finer_fits.then_some(finer),
+                    nearest_controllable_setpoint_ph: m.nearest_controllable(x, pump, band),
+                }
+            } else {
+                DoseCheck::TooSteep {
+                    step_delta_ph: step.abs(),
+                    band_ph: band,
+                    dilute_reagent_by: R::ONE,
+                    diluted_flow_l_per_h: None,
+                    max_step_l_per_h: None,
+                    nearest_controllable_setpoint_ph: None,
+                }
+            };
+            let pushed = checks.push(check);
             debug_assert!(pushed.is_ok());
         }
     }
@@ -691,6 +881,7 @@ pub fn plan<R: Real, const N: usize, const M: usize>(
         rounds: core.rounds,
         resolution_ph: core.resolution,
         checks,
+        in_band,
     })
 }
 
@@ -805,20 +996,14 @@ mod tests {
         });
         let (dph, dilute) = steep.expect("too steep expected");
         assert!(dph > 0.3 && dilute > 1.0, "{dph} {dilute}");
-        // The dilution factor is real: a step of step/factor L/h fits the band, and one of
-        // step/(0.9·factor) does not.
-        let step_with = |q: f64| {
-            let r = {
-                let mut r = reagent.clone();
-                r.set_temperature(influent.temperature());
-                r
-            };
-            let base = influent.mix(1200.0, &r, needed).unwrap();
-            let moved = influent.mix(1200.0, &r, needed + q).unwrap();
-            (moved.solve().unwrap().ph - base.solve().unwrap().ph).abs()
+        // The dilution factor is real: the reagent diluted that much, planned again, moves the
+        // pH by no more than the band per step; diluted 10 % less, it does not.
+        let step_with = |factor: f64| {
+            let p = plan(&influent, LitresPerHour::new(1200.0).unwrap(), &caustic(6.25 / factor), &req).unwrap();
+            p.gain_ph_per_step.unwrap().abs()
         };
-        assert!(step_with(0.01 / dilute) <= 0.3 + 1e-9, "{}", step_with(0.01 / dilute));
-        assert!(step_with(0.01 / (0.9 * dilute)) > 0.3, "{}", step_with(0.01 / (0.9 * dilute)));
+        assert!(step_with(dilute) <= 0.3, "{}", step_with(dilute));
+        assert!(step_with(0.9 * dilute) > 0.3, "{}", step_with(0.9 * dilute));
         // The scan found a setpoint where one step fits the band (away from neutral, where water
         // itself buffers), and it is really controllable there.
         let nearest = p.checks.iter().find_map(|c| match c {
@@ -849,6 +1034,116 @@ mod tests {
         // A buffered influent with a big pump and a fine step is all clear.
         let ok = DoseRequest::checked(6.3, Some((20.0, 1e-4)), Some(0.3)).unwrap();
         assert!(plan(&rinse(), LitresPerHour::new(1200.0).unwrap(), &reagent, &ok).unwrap().all_clear());
+    }
+
+    #[test]
+    fn influent_in_band_needs_no_dose() {
+        // Softener rinse (invented): bicarbonate with a little carbonate, pH ≈ 8.9 at 14 °C.
+        let mut soft: Solution<f64, 6> = Solution::new(Celsius::new(14.0).unwrap(), Activity::Davies);
+        soft.add_formula("NaHCO3", 0.002).unwrap();
+        soft.add_formula("Na2CO3", 0.0001).unwrap();
+        let own = soft.solve().unwrap().ph;
+        let mut acid: Solution<f64, 1> = Solution::standard();
+        acid.add_formula("HCl", 10.0).unwrap();
+        let sp = own + 0.05;
+        let flow = LitresPerHour::new(1000.0).unwrap();
+        // Finding 4: the acid pulls away from a setpoint just above the influent; with the
+        // influent inside the band that is "no dose needed", not unreachable.
+        let req = DoseRequest::checked(sp, Some((2.0, 0.001)), Some(0.2)).unwrap();
+        let p = plan(&soft, flow, &acid, &req).unwrap();
+        let b = p.in_band.expect("in band");
+        assert!(!b.reagent_reaches_setpoint && p.reagent_flow_l_per_h == 0.0 && p.all_clear(), "{p:?}");
+        assert!((b.low_ph - (sp - 0.1)).abs() < 1e-12 && (b.high_ph - (sp + 0.1)).abs() < 1e-12);
+        assert!(p.gain_ph_per_l_per_h < 0.0, "acid lowers the pH: {}", p.gain_ph_per_l_per_h);
+        // Outside the band it is still unreachable.
+        let narrow = DoseRequest::checked(sp, Some((2.0, 0.001)), Some(0.05)).unwrap();
+        assert!(matches!(plan(&soft, flow, &acid, &narrow), Err(DoseError::WrongDirection { .. })));
+        // Caustic reaches it: a plan that trims, flagged in band, no turndown check even though
+        // the trim is below one coarse step.
+        let coarse = DoseRequest::checked(sp, Some((2.0, 0.5)), Some(0.2)).unwrap();
+        let p = plan(&soft, flow, &caustic(6.0), &coarse).unwrap();
+        assert!(p.reagent_flow_l_per_h > 0.0 && p.reagent_flow_l_per_h < 0.5, "{p:?}");
+        assert!(p.in_band.is_some_and(|b| b.reagent_reaches_setpoint));
+        assert!(!p.checks.iter().any(|c| matches!(c, DoseCheck::BelowTurndown { .. })), "{p:?}");
+    }
+
+    #[test]
+    fn turndown_and_absurd_flows() {
+        let influent = rinse();
+        let reagent = caustic(2.0);
+        let flow = LitresPerHour::new(1200.0).unwrap();
+        let free = plan(&influent, flow, &reagent, &DoseRequest::new(Ph::new(6.3).unwrap())).unwrap();
+        let q = free.reagent_flow_l_per_h;
+        // Finding 7: a step coarser than the planned flow, or a minimum above it, is turndown.
+        // (A band of 7 pH: wide enough for the steepness check, the influent at pH 2.6 outside it.)
+        let coarse = DoseRequest::checked(6.3, Some((50.0, 1.2 * q)), Some(7.0)).unwrap();
+        let p = plan(&influent, flow, &reagent, &coarse).unwrap();
+        let t = p.checks.iter().find_map(|c| match c {
+            DoseCheck::BelowTurndown { needed_l_per_h, smallest_l_per_h, .. } => {
+                Some((*needed_l_per_h, *smallest_l_per_h))
+            }
+            _ => None,
+        });
+        assert_eq!(t, Some((q, 1.2 * q)), "{p:?}");
+        let pump = Pump::new(50.0, q / 100.0).unwrap().with_minimum(3.0 * q).unwrap();
+        let req = DoseRequest { pump: Some(pump), ..coarse };
+        let p = plan(&influent, flow, &reagent, &req).unwrap();
+        assert!(
+            p.checks.iter().any(
+                |c| matches!(c, DoseCheck::BelowTurndown { smallest_l_per_h, .. } if *smallest_l_per_h == 3.0 * q)
+            )
+        );
+        assert_eq!(
+            Pump::new(1.0, 0.1).unwrap().with_minimum(2.0),
+            Err(InvalidInput { quantity: Quantity::PumpMin, value: 2.0 })
+        );
+        // Absurd influent flows are refused with their value.
+        let tiny = LitresPerHour::new(1e-300).unwrap();
+        assert_eq!(
+            plan(&influent, tiny, &reagent, &DoseRequest::new(Ph::new(7.0).unwrap())),
+            Err(DoseError::Input(InvalidInput { quantity: Quantity::InfluentFlow, value: 1e-300 }))
+        );
+        // A 1e-12 L/h step: the pH change has the gain's sign and size (no solver noise).
+        let fine = DoseRequest::checked(7.0, Some((10.0, 1e-12)), Some(0.3)).unwrap();
+        let p = plan(&influent, flow, &reagent, &fine).unwrap();
+        let step = p.gain_ph_per_step.unwrap();
+        assert!(step > 0.0 && (step - p.gain_ph_per_l_per_h * 1e-12).abs() < 1e-3 * step, "{step}");
+    }
+
+    #[test]
+    fn steep_remedies_pass_when_applied() {
+        // Finding 3: unbuffered acid rinse, 50 % caustic (19 mol/L, from the grade table), a
+        // 2 L/h pump with a fine step: a weaker reagent fits the band but not the pump.
+        let mut strip: Solution<f64, 6> = Solution::standard();
+        strip.add_formula("H2SO4", 0.003).unwrap();
+        let flow = LitresPerHour::new(500.0).unwrap();
+        let reagent = caustic(19.0);
+        let req = DoseRequest::checked(7.0, Some((2.0, 0.001)), Some(0.5)).unwrap();
+        let p = plan(&strip, flow, &reagent, &req).unwrap();
+        let (f, q, finer) = p
+            .checks
+            .iter()
+            .find_map(|c| match c {
+                DoseCheck::TooSteep { dilute_reagent_by, diluted_flow_l_per_h, max_step_l_per_h, .. } => {
+                    Some((*dilute_reagent_by, diluted_flow_l_per_h.unwrap(), max_step_l_per_h.unwrap()))
+                }
+                _ => None,
+            })
+            .expect("too steep");
+        assert!(q > 2.0, "the dilution needs {q} L/h, more than the pump");
+        // Applied: the diluted reagent fits the band; only the pump is too small.
+        let weaker = caustic(19.0 / f);
+        let again = plan(&strip, flow, &weaker, &req).unwrap();
+        assert!((again.reagent_flow_l_per_h - q).abs() < 1e-9 * q);
+        assert!(again.checks.iter().all(|c| matches!(c, DoseCheck::BeyondPump { .. })), "{again:?}");
+        let big = DoseRequest::checked(7.0, Some((q * 1.01, 0.001)), Some(0.5)).unwrap();
+        assert!(plan(&strip, flow, &weaker, &big).unwrap().all_clear());
+        // The finer step with this reagent passes; 10 % coarser does not.
+        let at = |step: f64| {
+            plan(&strip, flow, &reagent, &DoseRequest::checked(7.0, Some((2.0, step)), Some(0.5)).unwrap()).unwrap()
+        };
+        assert!(at(finer).all_clear(), "{:?}", at(finer));
+        assert!(!at(finer * 1.1).all_clear());
     }
 
     #[test]

@@ -1,8 +1,9 @@
 //! Titration and dose models on top of [`crate::chem`]: streams and mixing ([`stream`]),
 //! commercial reagents ([`reagent`]), titration curves and equivalence points ([`curve`]), the
-//! dose for a setpoint with process gain and boot checks ([`dose`]), alkalinity ([`alkalinity`]),
-//! influent characterisation by Levenberg–Marquardt ([`fit`]), stage advice ([`stages`]) and
-//! the hazards no pH check sees: gas release, reagent crystallisation ([`hazard`]).
+//! dose for a setpoint with process gain and boot checks ([`dose`]) and their remedies
+//! ([`remedy`]), alkalinity ([`alkalinity`]), influent characterisation by Levenberg–Marquardt
+//! ([`fit`]), stage advice ([`stages`]) and the hazards no pH check sees: gas release, reagent
+//! crystallisation ([`hazard`]).
 
 pub mod alkalinity;
 pub mod curve;
@@ -10,9 +11,10 @@ pub mod dose;
 pub mod fit;
 pub mod hazard;
 pub mod reagent;
+pub mod remedy;
 pub mod stages;
 pub mod stream;
 
 pub use curve::{CurvePoint, EquivalencePoint, Titration, inflections};
-pub use dose::{DoseCheck, DoseError, DosePlan, DoseRequest, Pump, plan};
+pub use dose::{DoseCheck, DoseError, DosePlan, DoseRequest, InBand, Pump, plan};
 pub use stream::Stream;

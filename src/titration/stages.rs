@@ -6,7 +6,11 @@
 //! 3 pH units → 1 stage, up to 5 → 2, more → 3. Intermediate setpoints split the worst excursion
 //! into equal pH steps, so each tank sees a titration curve it can control.
 
+use crate::chem::Solution;
 use crate::real::Real;
+use crate::units::{LitresPerHour, Ph};
+
+use super::dose::{DoseCheck, DoseRequest, SETPOINT_SCAN_SPACING_PH, SETPOINT_SCAN_STEPS, plan_with};
 
 /// Largest excursion (pH) one stage handles (common practice, see the module docs).
 pub const ONE_STAGE_MAX_EXCURSION_PH: f64 = 3.0;
@@ -79,6 +83,108 @@ pub fn advise<R: Real>(
     })
 }
 
+/// One stage of the advice, checked with the plan's own checks.
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct StageCheck<R: Real> {
+    /// The setpoint the rule of thumb gave this stage, pH.
+    pub rule_setpoint_ph: R,
+    /// The setpoint advised: the rule's when it passes, else the nearest that does (0.1 pH
+    /// apart, strictly between the stage's influent pH and the final setpoint; intermediate
+    /// stages only), else the rule's (then `controllable` is false).
+    pub setpoint_ph: R,
+    /// Whether the stage's plan at `setpoint_ph` passes the pump, turndown and steepness
+    /// checks with the same reagent, pump and band.
+    pub controllable: bool,
+    /// pH change of one pump step at that plan, when it exists.
+    pub step_delta_ph: Option<R>,
+}
+
+/// Whether a plan's checks leave the stage controllable (the precision check is not about
+/// the stage's setpoint).
+fn controllable(checks: &[DoseCheck<impl Real>]) -> bool {
+    !checks.iter().any(|c| {
+        matches!(c, DoseCheck::BeyondPump { .. } | DoseCheck::TooSteep { .. } | DoseCheck::BelowTurndown { .. })
+    })
+}
+
+/// Checks each stage of `advice` in flow order: stage k is planned on the effluent of stage
+/// k − 1 (the influent mixed with the reagent flow that stage planned, at their summed flow)
+/// with the same reagent, pump and band as `request`. An intermediate stage whose setpoint
+/// fails is moved to the nearest setpoint that passes, if any. The chain stops (later entries
+/// `None`) where a stage has no plan. Bounded: per stage one plan, plus up to
+/// 2·[`SETPOINT_SCAN_STEPS`] for a failing intermediate one: at most 3 + 4·20 plans, each
+/// without remedies.
+pub fn check<R: Real, const N: usize, const M: usize>(
+    advice: &StageAdvice<R>,
+    influent: &Solution<R, N>,
+    influent_flow: LitresPerHour<R>,
+    reagent: &Solution<R, M>,
+    request: &DoseRequest<R>,
+) -> [Option<StageCheck<R>>; 3] {
+    let mut out = [None; 3];
+    let mut reagent = reagent.clone();
+    reagent.set_temperature(influent.temperature());
+    let reagent = &reagent;
+    let mut stage_influent = influent.clone();
+    let mut flow = influent_flow;
+    let last = advice.stages;
+    let final_ph = request.setpoint.ph();
+    let mut start_ph = match stage_influent.solve() {
+        Ok(eq) => eq.ph,
+        Err(_) => return out,
+    };
+    // At most 3 stages (the advice's array).
+    for (k, (rule, slot)) in (1..=last).zip(advice.setpoints_ph.iter().zip(out.iter_mut())) {
+        let Some(rule) = *rule else { break };
+        let plan_at = |sp: R| {
+            let ph = Ph::new(sp).ok()?;
+            plan_with(&stage_influent, flow, reagent, &DoseRequest { setpoint: ph, ..*request }, false).ok()
+        };
+        let mut chosen = plan_at(rule).map(|p| (rule, p));
+        let passes = chosen.as_ref().is_some_and(|(_, p)| controllable(&p.checks));
+        if !passes && k < last {
+            // Candidates strictly between the stage's influent pH and the final setpoint.
+            let (lo, hi) = if start_ph < final_ph { (start_ph, final_ph) } else { (final_ph, start_ph) };
+            'scan: for j in 1..=SETPOINT_SCAN_STEPS {
+                let d = R::from_f64(SETPOINT_SCAN_SPACING_PH * f64::from(j));
+                for candidate in [rule - d, rule + d] {
+                    if candidate <= lo || candidate >= hi {
+                        continue;
+                    }
+                    if let Some(p) = plan_at(candidate).filter(|p| controllable(&p.checks)) {
+                        chosen = Some((candidate, p));
+                        break 'scan;
+                    }
+                }
+            }
+        }
+        let Some((setpoint_ph, p)) = chosen else {
+            *slot = Some(StageCheck {
+                rule_setpoint_ph: rule,
+                setpoint_ph: rule,
+                controllable: false,
+                step_delta_ph: None,
+            });
+            break;
+        };
+        *slot = Some(StageCheck {
+            rule_setpoint_ph: rule,
+            setpoint_ph,
+            controllable: controllable(&p.checks),
+            step_delta_ph: p.gain_ph_per_step,
+        });
+        // The next stage's influent: this stage's effluent.
+        let q = flow.l_per_h();
+        let Ok(next) = stage_influent.mix(q, reagent, p.reagent_flow_l_per_h) else { break };
+        let Ok(next_flow) = LitresPerHour::new(q + p.reagent_flow_l_per_h) else { break };
+        stage_influent = next;
+        flow = next_flow;
+        start_ph = setpoint_ph;
+    }
+    out
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -105,6 +211,39 @@ mod tests {
         assert!((b.setpoints_ph[0].unwrap() - 9.25).abs() < 1e-12);
         // One stage: the setpoint itself, and no entries past `stages`.
         assert_eq!(advise(5.0_f64, 8.0, 7.0).unwrap().setpoints_ph, [Some(7.0), None, None]);
+    }
+
+    #[test]
+    fn stage_setpoints_are_checked_like_the_plan() {
+        use crate::chem::{Activity, Solution};
+        use crate::titration::dose::{DoseRequest, plan};
+        use crate::units::Celsius;
+        // Unbuffered acid rinse (invented), 50 % caustic, 2 L/h pump stepping 1 mL/h.
+        let mut strip: Solution<f64, 6> = Solution::new(Celsius::standard(), Activity::Davies);
+        strip.add_formula("H2SO4", 0.003).unwrap();
+        let mut caustic: Solution<f64, 1> = Solution::standard();
+        caustic.add_formula("NaOH", 19.0).unwrap();
+        let flow = LitresPerHour::new(500.0).unwrap();
+        let req = DoseRequest::checked(7.0, Some((2.0, 0.001)), Some(0.5)).unwrap();
+        let own = strip.solve().unwrap().ph;
+        let advice = advise(own, own, 7.0).unwrap();
+        assert_eq!(advice.stages, 2);
+        let checks = check(&advice, &strip, flow, &caustic, &req);
+        let first = checks[0].unwrap();
+        // The rule's first setpoint is too steep here; the checked one is not.
+        let rule =
+            plan(&strip, flow, &caustic, &DoseRequest { setpoint: Ph::new(first.rule_setpoint_ph).unwrap(), ..req })
+                .unwrap();
+        assert!(rule.checks.iter().any(|c| matches!(c, DoseCheck::TooSteep { .. })), "{rule:?}");
+        assert!(first.controllable && first.setpoint_ph != first.rule_setpoint_ph, "{first:?}");
+        let moved = plan(&strip, flow, &caustic, &DoseRequest { setpoint: Ph::new(first.setpoint_ph).unwrap(), ..req })
+            .unwrap();
+        assert!(moved.all_clear(), "{moved:?}");
+        assert!(first.setpoint_ph > own && first.setpoint_ph < 7.0);
+        // The final stage keeps its setpoint and is reported as not controllable.
+        let last = checks[1].unwrap();
+        assert!(!last.controllable && last.setpoint_ph == 7.0, "{last:?}");
+        assert!(checks[2].is_none());
     }
 
     #[test]

@@ -23,6 +23,24 @@ pub fn fixed(v: f64, decimals: usize) -> String {
     if v.is_finite() { format!("{v:.decimals$}") } else { "n/a".to_owned() }
 }
 
+/// A signed change with `decimals` decimals ("+0.031", "-1.250"); a non-zero value that would
+/// round to zero there keeps two significant digits in scientific notation ("+2.1e-9"), and zero
+/// (either sign) is "0": never "-0.000". "n/a" when not finite.
+pub fn signed(v: f64, decimals: usize) -> String {
+    if !v.is_finite() {
+        return "n/a".to_owned();
+    }
+    if v == 0.0 {
+        return "0".to_owned();
+    }
+    let rounds_to_zero = format!("{:.decimals$}", v.abs()).trim_matches(|c| c == '0' || c == '.').is_empty();
+    if rounds_to_zero {
+        let s = format!("{v:.1e}");
+        return if v > 0.0 { format!("+{s}") } else { s };
+    }
+    format!("{v:+.decimals$}")
+}
+
 /// A fraction 0–1 as a percentage: "43.1 %", "<0.1 %" for a tiny non-zero share.
 pub fn percent(fraction: f64) -> String {
     if !fraction.is_finite() {
@@ -98,5 +116,13 @@ mod tests {
         assert_eq!(num(1e7), "1e7");
         assert_eq!(num(0.0), "0");
         assert_eq!(num(f64::NAN), "NaN");
+        // Never a negative zero; tiny changes keep their size and sign.
+        assert_eq!(signed(0.031, 3), "+0.031");
+        assert_eq!(signed(-1.25, 3), "-1.250");
+        assert_eq!(signed(2.1e-9, 3), "+2.1e-9");
+        assert_eq!(signed(-3.4e-13, 3), "-3.4e-13");
+        assert_eq!(signed(-0.0, 3), "0");
+        assert_eq!(signed(0.0004, 3), "+4.0e-4");
+        assert_eq!(signed(0.0005, 3), "+0.001");
     }
 }

@@ -19,7 +19,14 @@ pub struct Num(pub f64);
 
 impl Serialize for Num {
     fn serialize<S: Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
-        if self.0.is_finite() { s.serialize_f64(self.0) } else { s.serialize_none() }
+        // A negative zero (a rounding residue) is written as 0: never "-0.0".
+        if self.0 == 0.0 {
+            s.serialize_f64(0.0)
+        } else if self.0.is_finite() {
+            s.serialize_f64(self.0)
+        } else {
+            s.serialize_none()
+        }
     }
 }
 

@@ -196,3 +196,27 @@ fn codes_are_stable_and_messages_carry_the_numbers() {
     assert_eq!(std::format!("{f}"), "210: dose exceeds the pump's maximum (caustic): 12.5 (limit 10)");
     assert!(Code::BeyondPump.is_error() && !Code::SingleProbe.is_error());
 }
+
+#[test]
+fn a_dose_below_the_pump_turndown_is_a_warning() {
+    // The example's caustic dose is well below half of its 10 L/h pump: with a minimum duty
+    // of 0.5 the pump cannot deliver it steadily.
+    let mut skid = example::plating_rinse();
+    if let Some(caustic) = skid.caustic.as_mut() {
+        caustic.pump = PumpSettings::Duty { max_l_per_h: 10.0, min_duty: 0.5, resolution_steps: 1000 };
+    }
+    for r in [check::<f32>(&skid), check::<f64>(&skid)] {
+        let f = r.warnings.iter().find(|f| f.code == Code::BelowTurndown).expect("turndown warning");
+        assert!(f.value > 0.0 && f.value < 5.0 && (f.limit - 5.0).abs() < 1e-4, "{f:?}");
+    }
+    // The example itself has none.
+    assert!(!report(&example::plating_rinse()).has(Code::BelowTurndown));
+    // A minimum influent flow too small to plan with is a setting out of range, named.
+    let mut tiny = example::plating_rinse();
+    tiny.influent.min_flow_l_per_h = 1e-6;
+    let r = report(&tiny);
+    assert!(
+        r.errors.iter().any(|f| f.code == Code::SettingOutOfRange && f.name == "influent.min_flow_l_per_h"),
+        "{r:?}"
+    );
+}

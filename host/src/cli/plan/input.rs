@@ -66,6 +66,8 @@ struct InfluentJson {
 struct PumpJson {
     max_l_per_h: f64,
     step_l_per_h: f64,
+    #[serde(default)]
+    min_l_per_h: Option<f64>,
 }
 
 /// The core's message for a value out of range, with the request field it came from.
@@ -75,6 +77,7 @@ fn invalid(e: InvalidInput) -> CliError {
         Quantity::PhWidth => "band_ph",
         Quantity::PumpMax => "pump max_l_per_h",
         Quantity::PumpStep => "pump step_l_per_h",
+        Quantity::PumpMin => "pump min_l_per_h",
         _ => "influent flow_l_per_h",
     };
     CliError::new(format!("{field}: {e}"))
@@ -89,18 +92,26 @@ impl PlanInput {
         flow_l_per_h: f64,
         reagent: Reagent,
         setpoint_ph: f64,
-        pump: Option<(f64, f64)>,
+        pump: Option<(f64, f64, Option<f64>)>,
         band_ph: Option<f64>,
     ) -> Result<Self, CliError> {
-        LitresPerHour::new(flow_l_per_h).and_then(|f| f.positive(Quantity::InfluentFlow)).map_err(invalid)?;
-        let request = DoseRequest::checked(setpoint_ph, pump, band_ph).map_err(invalid)?;
+        LitresPerHour::new(flow_l_per_h)
+            .map_err(|e| InvalidInput { quantity: Quantity::InfluentFlow, ..e })
+            .and_then(|f| f.plannable(Quantity::InfluentFlow))
+            .map_err(invalid)?;
+        let request =
+            DoseRequest::checked(setpoint_ph, pump.map(|(max, step, _)| (max, step)), band_ph).map_err(invalid)?;
+        let pump = match (request.pump, pump.and_then(|(_, _, min)| min)) {
+            (Some(p), Some(min)) => Some(p.with_minimum(min).map_err(invalid)?),
+            (p, _) => p,
+        };
         Ok(Self {
             conditions,
             influent,
             flow_l_per_h,
             reagent,
             setpoint_ph,
-            pump: request.pump,
+            pump,
             band_ph,
             reagent_temperature_c: None,
         })
@@ -126,7 +137,7 @@ impl PlanInput {
         let conditions = Conditions::new(r.temperature_c, r.activity.as_deref())?;
         let influent = composition::resolve(r.influent.dissolved.0, "influent")?;
         let reagent = Reagent::from_json(r.reagent, "reagent")?;
-        let pump = r.pump.map(|p| (p.max_l_per_h, p.step_l_per_h));
+        let pump = r.pump.map(|p| (p.max_l_per_h, p.step_l_per_h, p.min_l_per_h));
         Self::new(conditions, influent, r.influent.flow_l_per_h, reagent, r.setpoint_ph, pump, r.band_ph)?
             .with_reagent_temperature(r.reagent_temperature_c)
     }
@@ -155,7 +166,12 @@ impl PlanInput {
         let step = a.pump_step_l_per_h.or(default(example_step));
         let pump = match (max, step) {
             _ if a.no_pump => None,
-            (Some(max_l_per_h), Some(step_l_per_h)) => Some((max_l_per_h, step_l_per_h)),
+            (Some(max_l_per_h), Some(step_l_per_h)) => Some((max_l_per_h, step_l_per_h, a.pump_min_l_per_h)),
+            (None, None) if a.pump_min_l_per_h.is_some() => {
+                return Err(CliError::new(
+                    "--pump-min-l-per-h needs the pump: give --pump-max-l-per-h and --pump-step-l-per-h too",
+                ));
+            }
             (None, None) => None,
             _ => {
                 return Err(CliError::new(

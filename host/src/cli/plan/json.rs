@@ -36,6 +36,7 @@ struct Output {
     rounds: Option<u32>,
     checks: Vec<CheckOut>,
     unreachable: Option<UnreachableOut>,
+    in_band: Option<InBandOut>,
     stage_advice: Option<StagesOut>,
     pump: Option<PumpOut>,
     band_ph: Option<Num>,
@@ -54,10 +55,17 @@ enum CheckOut {
         needed_l_per_h: Num,
         max_l_per_h: Num,
     },
+    BelowTurndown {
+        needed_l_per_h: Num,
+        smallest_l_per_h: Num,
+        dilute_reagent_by: Option<Num>,
+    },
     TooSteep {
         step_delta_ph: Num,
         band_ph: Num,
         dilute_reagent_by: Num,
+        diluted_flow_l_per_h: Option<Num>,
+        max_step_l_per_h: Option<Num>,
         nearest_controllable_setpoint_ph: Option<Num>,
     },
     ResolutionLimited {
@@ -87,18 +95,36 @@ enum UnreachableOut {
 }
 
 #[derive(Serialize)]
+struct InBandOut {
+    influent_ph: Num,
+    low_ph: Num,
+    high_ph: Num,
+    reagent_reaches_setpoint: bool,
+}
+
+#[derive(Serialize)]
 struct StagesOut {
     stages: u8,
     setpoints_ph: Vec<Num>,
     excursion_ph: Num,
     both_directions: bool,
     basis: &'static str,
+    stage_checks: Vec<StageCheckOut>,
+}
+
+#[derive(Serialize)]
+struct StageCheckOut {
+    rule_setpoint_ph: Num,
+    setpoint_ph: Num,
+    controllable: bool,
+    step_delta_ph: Option<Num>,
 }
 
 #[derive(Serialize)]
 struct PumpOut {
     max_l_per_h: Num,
     step_l_per_h: Num,
+    min_l_per_h: Num,
 }
 
 /// The source of the crystallisation row that applies to the request's reagent grade.
@@ -136,15 +162,26 @@ pub fn render(r: &PlanReport) -> Result<String, CliError> {
                         DoseCheck::BeyondPump { needed_l_per_h, max_l_per_h } => {
                             CheckOut::BeyondPump { needed_l_per_h: Num(needed_l_per_h), max_l_per_h: Num(max_l_per_h) }
                         }
+                        DoseCheck::BelowTurndown { needed_l_per_h, smallest_l_per_h, dilute_reagent_by } => {
+                            CheckOut::BelowTurndown {
+                                needed_l_per_h: Num(needed_l_per_h),
+                                smallest_l_per_h: Num(smallest_l_per_h),
+                                dilute_reagent_by: opt(dilute_reagent_by),
+                            }
+                        }
                         DoseCheck::TooSteep {
                             step_delta_ph,
                             band_ph,
                             dilute_reagent_by,
+                            diluted_flow_l_per_h,
+                            max_step_l_per_h,
                             nearest_controllable_setpoint_ph,
                         } => CheckOut::TooSteep {
                             step_delta_ph: Num(step_delta_ph),
                             band_ph: Num(band_ph),
                             dilute_reagent_by: Num(dilute_reagent_by),
+                            diluted_flow_l_per_h: opt(diluted_flow_l_per_h),
+                            max_step_l_per_h: opt(max_step_l_per_h),
                             nearest_controllable_setpoint_ph: opt(nearest_controllable_setpoint_ph),
                         },
                         DoseCheck::ResolutionLimited { resolution_ph, needed_ph } => {
@@ -175,14 +212,41 @@ pub fn render(r: &PlanReport) -> Result<String, CliError> {
                 UnreachableOut::BeyondActivityModel { ionic_strength_mol_per_l: Num(ionic_strength_mol_per_l) }
             }
         }),
+        in_band: p.and_then(|p| p.in_band).map(|b| InBandOut {
+            influent_ph: Num(b.influent_ph),
+            low_ph: Num(b.low_ph),
+            high_ph: Num(b.high_ph),
+            reagent_reaches_setpoint: b.reagent_reaches_setpoint,
+        }),
         stage_advice: r.stages.map(|s| StagesOut {
             stages: s.stages,
-            setpoints_ph: s.setpoints_ph.iter().flatten().copied().map(Num).collect(),
+            // The advised setpoints: a checked stage's (moved when the rule's failed), else the rule's.
+            setpoints_ph: s
+                .setpoints_ph
+                .iter()
+                .flatten()
+                .enumerate()
+                .map(|(k, sp)| Num(r.stage_checks.get(k).map_or(*sp, |c| c.setpoint_ph)))
+                .collect(),
             excursion_ph: Num(s.excursion_ph),
             both_directions: s.both_directions,
             basis: STAGE_BASIS,
+            stage_checks: r
+                .stage_checks
+                .iter()
+                .map(|c| StageCheckOut {
+                    rule_setpoint_ph: Num(c.rule_setpoint_ph),
+                    setpoint_ph: Num(c.setpoint_ph),
+                    controllable: c.controllable,
+                    step_delta_ph: opt(c.step_delta_ph),
+                })
+                .collect(),
         }),
-        pump: i.pump.map(|p| PumpOut { max_l_per_h: Num(p.max_l_per_h()), step_l_per_h: Num(p.step_l_per_h()) }),
+        pump: i.pump.map(|p| PumpOut {
+            max_l_per_h: Num(p.max_l_per_h()),
+            step_l_per_h: Num(p.step_l_per_h()),
+            min_l_per_h: Num(p.min_l_per_h()),
+        }),
         band_ph: opt(i.band_ph),
         temperature_c: Num(i.conditions.celsius()),
         activity: i.conditions.activity_name(),

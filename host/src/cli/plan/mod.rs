@@ -37,19 +37,23 @@ JSON request (temperature_c, activity, pump and band_ph optional):
    \"influent\": {\"flow_l_per_h\": 1200, \"dissolved\": {\"NaHCO3\": 0.002, \"HCl\": 0.001}},
    \"reagent\": {\"dissolved\": {\"NaOH\": 6.25}},
    \"setpoint_ph\": 7.0, \"pump\": {\"max_l_per_h\": 10, \"step_l_per_h\": 0.01}, \"band_ph\": 0.3}
+  The pump may carry \"min_l_per_h\" (its lowest steady flow, default 0).
   The reagent may instead be {\"substance\": \"NaOH\", \"mass_percent\": 25, \"density_kg_per_l\": 1.274}
   (density optional for the grades above).
 
 JSON result (stable keys first):
   reachable (bool), reagent_flow_l_per_h (L/h, null when unreachable), mixture_buffer_capacity
   (mol/L per pH, at the setpoint), gain_ph_per_l_per_h (pH per L/h), verdicts (readable strings:
-  \"ok\", \"unreachable: ...\", \"beyond pump capacity: ...\", \"too steep: ...\", \"HAZARD ...\").
+  \"ok\", \"no dose needed: ...\", \"unreachable: ...\", \"beyond pump capacity: ...\",
+  \"below turndown: ...\", \"too steep: ...\", \"HAZARD ...\").
   Also: all_clear, setpoint_ph, influent_ph, influent_flow_l_per_h, influent_dissolved (formula ->
   mol/L), gain_ph_per_step (pH change of one pump step, a real solve), reagent_mol_per_l
   (one-substance reagents), reagent, mixture_ionic_strength, rounds, checks [{kind:
-  beyond_pump|too_steep|resolution_limited|gas_release|reagent_crystallises, ...}], unreachable
-  ({kind: wrong_direction|beyond_reagent, limit_ph} or null), stage_advice, pump, band_ph,
-  temperature_c, activity, notes, caution, hazard (bool), reagent_temperature_c.
+  beyond_pump|below_turndown|too_steep|resolution_limited|gas_release|reagent_crystallises, ...}],
+  unreachable ({kind: wrong_direction|beyond_reagent, limit_ph} or null), in_band ({influent_ph,
+  low_ph, high_ph, reagent_reaches_setpoint} or null), stage_advice (with stage_checks: each stage
+  planned with the same reagent, pump and band), pump, band_ph, temperature_c, activity, notes,
+  caution, hazard (bool), reagent_temperature_c.
   gas_release: gas (\"Cl2\"|\"H2S\"), gas_name, release_below_ph, gas_fraction (at the setpoint),
   basis; reagent_crystallises: crystallises_below_c, reagent_temperature_c, source.
 
@@ -91,6 +95,10 @@ pub struct Args {
     /// Metering pump's smallest step, L/h (give the maximum too)
     #[arg(long, value_name = "L_PER_H", value_parser = value::finite_number, allow_negative_numbers = true)]
     pub pump_step_l_per_h: Option<f64>,
+    /// Metering pump's lowest steady flow, L/h [default: 0; a planned flow below it, or below
+    /// one step, is a turndown verdict]
+    #[arg(long, value_name = "L_PER_H", value_parser = value::finite_number, allow_negative_numbers = true)]
+    pub pump_min_l_per_h: Option<f64>,
     /// Control band (full width), pH
     #[arg(long, value_name = "PH", value_parser = value::finite_number, allow_negative_numbers = true)]
     pub band_ph: Option<f64>,
@@ -99,7 +107,7 @@ pub struct Args {
     #[arg(long, value_name = "C", value_parser = value::finite_number, allow_negative_numbers = true)]
     pub reagent_temperature_c: Option<f64>,
     /// Plan without a pump (drops the example's pump and the pump checks)
-    #[arg(long, conflicts_with_all = ["pump_max_l_per_h", "pump_step_l_per_h"])]
+    #[arg(long, conflicts_with_all = ["pump_max_l_per_h", "pump_step_l_per_h", "pump_min_l_per_h"])]
     pub no_pump: bool,
     #[command(flatten)]
     pub conditions: ConditionArgs,
@@ -119,6 +127,7 @@ impl Args {
             self.setpoint_ph,
             self.pump_max_l_per_h,
             self.pump_step_l_per_h,
+            self.pump_min_l_per_h,
             self.band_ph,
             self.reagent_temperature_c,
         ];
