@@ -3,7 +3,7 @@
 //!
 //! A weaker reagent is the reagent mixed with water (its totals and strong ions scaled by
 //! 1/f, exactly what a user's weaker grade is in the model), planned again by
-//! [`super::dose::plan_with`] without remedies. Bounded: at most 2 +
+//! `dose::plan_with` without remedies. Bounded: at most 2 +
 //! [`MAX_DILUTION_HALVINGS`] such plans.
 
 use crate::chem::Solution;
