@@ -22,7 +22,7 @@
 use super::activity;
 use super::solution::Solution;
 use super::solution::{Component, MAX_SYSTEMS};
-use super::solve::{Eval, PH_MAX, PH_MIN};
+use super::solve::{Eval, PH_MAX, PH_MIN, clamp};
 use super::system::MAX_STEPS;
 use crate::real::Real;
 
@@ -189,8 +189,10 @@ pub(crate) enum Quick<R> {
 }
 
 impl<R: Real> View<'_, R> {
-    /// ε·S/β at `ph` (the same estimate as `Solution::resolution`).
-    fn resolution(&self, ph: R, af: R, beta: R) -> R {
+    /// ε·S/β at `ph`, where ε is the real type's relative precision and S the sum of the
+    /// magnitudes of every charge term (`Equilibrium::resolution_ph`). One pass over the
+    /// components, no exponentials beyond H⁺ and OH⁻.
+    pub(crate) fn resolution(&self, ph: R, af: R, beta: R) -> R {
         let mut scale = (af - ph).exp10() + (ph - self.pkw + af).exp10();
         scale += R::from_f64(2.0) * self.strong_ionic_strength_mol_per_l;
         for c in self.components {
@@ -453,7 +455,7 @@ impl<R: Real> View<'_, R> {
         let davies = self.davies;
         let a = self.debye_huckel_a;
         let max_ionic = R::from_f64(activity::DAVIES_MAX_IONIC_STRENGTH);
-        let clamp_i = |i: R| i.max(R::ZERO).min(max_ionic);
+        let clamp_i = |i: R| clamp(i, max_ionic);
         let (lo0, hi0) = (R::from_f64(PH_MIN), R::from_f64(PH_MAX));
         let (mut lo, mut hi) = (lo0, hi0);
         let edge = R::from_f64(1e3) * R::PH_TOLERANCE;

@@ -181,7 +181,7 @@ impl<R: Real> Equilibrium<R> {
 }
 
 /// `value` limited to [0, `max`] (an ionic-strength iterate kept inside the Davies range).
-fn clamp<R: Real>(value: R, max: R) -> R {
+pub(crate) fn clamp<R: Real>(value: R, max: R) -> R {
     value.max(R::ZERO).min(max)
 }
 
@@ -513,15 +513,7 @@ impl<R: Real, const N: usize> Solution<R, N> {
     /// ε·S/β at `ph` (see [`Equilibrium::resolution_ph`]). One pass over the components, no
     /// exponentials beyond H⁺ and OH⁻.
     pub(crate) fn resolution(&self, ph: R, af: R, beta: R) -> R {
-        let mut scale = (af - ph).exp10() + (ph - self.pkw() + af).exp10();
-        scale += R::from_f64(2.0) * self.strong_ionic_strength_mol_per_l();
-        for c in self.components() {
-            let z0 = c.system.charge_of_form(0);
-            let z_last = z0 - i32::from(c.system.steps);
-            scale += c.total_mol_per_l * R::from_i32(z0.abs().max(z_last.abs()));
-        }
-        let epsilon = R::from_f64(R::RELATIVE_PRECISION);
-        if beta > R::ZERO { epsilon * scale / beta } else { R::from_f64(f64::INFINITY) }
+        self.view().resolution(ph, af, beta)
     }
 
     /// Accepts a converged pH unless it sits on the edge of the search bracket (no root).
