@@ -17,7 +17,9 @@ const AFTER_HELP: &str = "\
 Prints titrant added (mL), pH and buffer capacity (mol/L per pH) at each point, then the
 equivalence points found on the curve (slope maxima) and predicted from the model
 (stoichiometry; the titrant's own weak acids or bases are not counted there), each with its pH.
-The spacing is adaptive, so the steep parts get the points. The CSV has the columns
+The spacing is adaptive, so the steep parts get the points. The slope maxima are found with the
+model's exact slope, refined between points, so they do not depend on --points; one counts when
+it is at least twice as steep as the flattest stretch on each side (common practice, no source). The CSV has the columns
 titrant_ml,ph,buffer_capacity_mol_per_l_per_ph; the SVG plots pH against mL with the
 equivalence points marked and labelled with their pH. --out DIR writes both, as curve.csv and
 curve.svg. --example: 100 mL of alkaline-cleaner rinse from a fictional plating shop

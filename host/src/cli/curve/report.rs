@@ -1,7 +1,7 @@
 //! Computing a `curve` request: the adaptive curve and both kinds of equivalence point.
 
 use heapless::Vec as FixedVec;
-use phdose::titration::curve::{CurveError, CurvePoint, EquivalencePoint, Titration, inflections};
+use phdose::titration::curve::{CurveError, CurvePoint, EquivalencePoint, Titration};
 
 use super::input::CurveInput;
 use crate::cli::CliError;
@@ -47,7 +47,7 @@ pub fn compute(input: CurveInput) -> Result<CurveReport, CliError> {
     let t = Titration { sample: &sample, sample_volume_l: input.sample_volume_l, titrant: &titrant };
     let points = fill(&t, input.max_titrant_l, input.points).map_err(curve_error)?;
     let mut found: FixedVec<EquivalencePoint<f64>, MAX_EQUIVALENCE_POINTS> = FixedVec::new();
-    inflections(&points, &mut found);
+    t.inflections_exact(&points, &mut found).map_err(curve_error)?;
     let mut model: FixedVec<EquivalencePoint<f64>, MAX_EQUIVALENCE_POINTS> = FixedVec::new();
     t.model_equivalence_points(input.max_titrant_l, &mut model).map_err(curve_error)?;
     // The core reports model points in titrant order.
