@@ -28,7 +28,7 @@ fn check_speciation(doc: &Value) {
     assert!(h > 0.0 && oh > 0.0);
     let mut charge = h - oh + num(doc, "strong_charge_eq_per_l");
     let mut scale = h + oh + num(doc, "strong_charge_eq_per_l").abs();
-    let totals = doc["totals"].as_object().unwrap();
+    let totals = doc["totals_mol_per_l"].as_object().unwrap();
     let systems = doc["systems"].as_array().unwrap();
     assert_eq!(systems.len(), totals.len());
     for s in systems {
@@ -49,7 +49,7 @@ fn check_speciation(doc: &Value) {
         assert!((sum - total).abs() <= 1e-12 * total.max(1e-300), "{key}: forms sum {sum}, total {total}");
     }
     assert!(charge.abs() <= 1e-9 * scale, "charge balance off by {charge} eq/L (scale {scale})");
-    let strong: f64 = doc["strong_ions"]
+    let strong: f64 = doc["strong_ions_mol_per_l"]
         .as_object()
         .unwrap()
         .iter()
@@ -79,9 +79,9 @@ fn speciate_json_round_trip() {
     for key in ["CO2", "HCO3-", "CO3^2-", "H3PO4", "H2PO4-", "HPO4^2-", "PO4^3-", "H+", "OH-"] {
         assert!(doc["species"].get(key).is_some(), "species {key} missing");
     }
-    assert_eq!(num(&doc["totals"], "carbonate"), 0.003);
-    assert_eq!(num(&doc["totals"], "phosphate"), 0.0004);
-    assert!((num(&doc["strong_ions"], "Na+") - 0.0035).abs() < 1e-15);
+    assert_eq!(num(&doc["totals_mol_per_l"], "carbonate"), 0.003);
+    assert_eq!(num(&doc["totals_mol_per_l"], "phosphate"), 0.0004);
+    assert!((num(&doc["strong_ions_mol_per_l"], "Na+") - 0.0035).abs() < 1e-15);
     assert_eq!(num(&doc, "temperature_c"), 22.0);
     assert_eq!(doc["activity"], "davies");
     // Bicarbonate water with a little acid: near-neutral, dilute, buffered.
@@ -91,7 +91,9 @@ fn speciate_json_round_trip() {
     assert!(num(&doc, "residual_eq_per_l").abs() < 1e-12);
     let g = &doc["activity_coefficients"];
     assert!(num(g, "z1") < 1.0 && num(g, "z2") < num(g, "z1") && num(g, "z3") < num(g, "z2"));
-    assert_eq!(doc["dissolved"].as_array().unwrap().len(), 3);
+    assert_eq!(doc["substances"].as_array().unwrap().len(), 3);
+    // `dissolved` has the request's shape: as given -> mol/L.
+    assert_eq!(num(&doc["dissolved"], "H3PO4"), 0.0004);
 }
 
 #[test]
@@ -100,7 +102,7 @@ fn speciate_defaults_names_and_ideal_mode() {
     check_speciation(&doc);
     assert_eq!(num(&doc, "temperature_c"), 25.0);
     assert_eq!(doc["activity"], "davies");
-    assert_eq!(doc["dissolved"][0]["formula"], "NaHCO3");
+    assert_eq!(doc["substances"][0]["formula"], "NaHCO3");
 
     let ideal = ok_json(
         &["speciate", "--json"],
@@ -111,7 +113,7 @@ fn speciate_defaults_names_and_ideal_mode() {
     assert_eq!(num(&ideal["activity_coefficients"], "z1"), 1.0);
     assert_ne!(num(&ideal, "ph"), num(&doc, "ph"), "activity model must make a difference");
     // Same composition, so the same system totals.
-    assert_eq!(ideal["totals"], doc["totals"]);
+    assert_eq!(ideal["totals_mol_per_l"], doc["totals_mol_per_l"]);
 }
 
 #[test]
@@ -155,7 +157,7 @@ fn example_runs_in_both_modes() {
     check_speciation(&doc);
     assert_eq!(num(&doc, "temperature_c"), 18.0);
     for key in ["carbonate", "sulfate", "phosphate"] {
-        assert!(num(&doc["totals"], key) > 0.0, "{key}");
+        assert!(num(&doc["totals_mol_per_l"], key) > 0.0, "{key}");
     }
     // Overriding the example's conditions is allowed.
     let ideal = ok_json(&["speciate", "--example", "--json", "--activity", "ideal", "--temperature-c", "30"], "");

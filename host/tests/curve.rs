@@ -69,7 +69,7 @@ fn example_json_matches_the_stoichiometry() {
     // Bicarbonate point near pH 8.3, CO2 point near 4.5 (SM 2320 endpoints, as named in
     // phdose::titration::alkalinity); the model solves them, so ±0.3.
     assert!((num(&curve[0], "ph") - 8.3).abs() < 0.3 && (num(&curve[1], "ph") - 4.5).abs() < 0.3, "{curve:?}");
-    assert_eq!(num(&doc, "sample_volume_l"), 0.1);
+    assert_eq!(num(&doc, "sample_volume_ml"), 100.0);
     assert!(doc["files"]["csv"].is_null() && doc["files"]["svg"].is_null());
 }
 
@@ -78,14 +78,14 @@ fn csv_and_svg_files() {
     let dir = scratch("curve-files");
     let (csv, svg) = (dir.join("curve.csv"), dir.join("curve.svg"));
     let (csv_s, svg_s) = (csv.to_str().unwrap(), svg.to_str().unwrap());
-    let doc = ok_json(&["curve", "--example", "--json", "--points", "96", "--csv", csv_s, "--svg", svg_s], "");
+    let doc = ok_json(&["curve", "--example", "--json", "--point-count", "96", "--csv", csv_s, "--svg", svg_s], "");
     assert_eq!(doc["files"]["csv"].as_str(), Some(csv_s));
     let points = doc["points"].as_array().unwrap();
     assert_eq!(points.len(), 96);
 
     let text = std::fs::read_to_string(&csv).unwrap();
     let mut lines = text.lines();
-    assert_eq!(lines.next(), Some("titrant_ml,ph,buffer_capacity_mol_per_l_per_ph"));
+    assert_eq!(lines.next(), Some("titrant_ml,ph,buffer_capacity"));
     let rows: Vec<Vec<f64>> = lines.map(|l| l.split(',').map(|x| x.parse().unwrap()).collect()).collect();
     assert_eq!(rows.len(), 96);
     // Same numbers (serde_json's default float parser may be off by an ulp, hence 1e-14).
@@ -153,8 +153,8 @@ fn out_folder_never_overwrites_without_force() {
 #[test]
 fn table_and_flags_agree_with_json() {
     let request = r#"{"temperature_c": 20, "activity": "ideal",
-        "sample": {"volume_l": 0.05, "dissolved": {"HCOOH": 0.004, "HCl": 0.002}},
-        "titrant": {"dissolved": {"NaOH": 0.02}}, "max_titrant_l": 0.02, "points": 40}"#;
+        "sample": {"volume_ml": 50, "dissolved": {"HCOOH": 0.004, "HCl": 0.002}},
+        "titrant": {"dissolved": {"NaOH": 0.02}}, "max_titrant_ml": 20, "point_count": 40}"#;
     let doc = ok_json(&["curve", "--json"], request);
     assert_eq!(doc["points"].as_array().unwrap().len(), 40);
     // 0.1 mmol HCl then 0.2 mmol formic acid with 0.02 mol/L NaOH: 5 and 15 mL (calc).
@@ -173,7 +173,7 @@ fn table_and_flags_agree_with_json() {
         "NaOH=0.02",
         "--max-titrant-ml",
         "20",
-        "--points",
+        "--point-count",
         "40",
         "--temperature-c",
         "20",
@@ -192,8 +192,8 @@ fn table_and_flags_agree_with_json() {
 
 #[test]
 fn mass_percent_titrant() {
-    let request = r#"{"sample": {"volume_l": 1.0, "dissolved": {"NaHCO3": 0.003}},
-        "titrant": {"substance": "HCl", "mass_percent": 32}, "max_titrant_l": 0.0005}"#;
+    let request = r#"{"sample": {"volume_ml": 1000, "dissolved": {"NaHCO3": 0.003}},
+        "titrant": {"substance": "HCl", "mass_percent": 32}, "max_titrant_ml": 0.5}"#;
     let doc = ok_json(&["curve", "--json"], request);
     // 32 % HCl at 1.159 kg/L (grade table) = 10.17 mol/L (calc); 3 mmol bicarbonate → 0.295 mL.
     let c = num(&doc["titrant"]["dissolved"], "HCl");
@@ -205,28 +205,32 @@ fn mass_percent_titrant() {
 
 #[test]
 fn input_errors_exit_2() {
-    let base = r#""sample": {"volume_l": 0.1, "dissolved": {"NaOH": 0.001}}, "titrant": {"dissolved": {"HCl": 0.02}}"#;
+    let base = r#""sample": {"volume_ml": 100, "dissolved": {"NaOH": 0.001}}, "titrant": {"dissolved": {"HCl": 0.02}}"#;
     for (extra, expect) in [
-        (r#""max_titrant_l": 0.01, "points": 63.5"#, "whole number"),
-        (r#""max_titrant_l": 0.01, "points": 512"#, "whole number"),
-        (r#""max_titrant_l": 0.01, "points": 4"#, "whole number"),
-        (r#""max_titrant_l": 0"#, "max titrant"),
-        (r#""max_titrant_l": -0.01"#, "max titrant"),
-        (r#""max_titrant_l": 0.01, "colour": "red""#, "unknown field"),
+        (r#""max_titrant_ml": 10, "point_count": 63.5"#, "whole number"),
+        (r#""max_titrant_ml": 10, "point_count": 512"#, "whole number"),
+        (r#""max_titrant_ml": 10, "point_count": 4"#, "whole number"),
+        (r#""max_titrant_ml": 0"#, "max titrant"),
+        (r#""max_titrant_ml": -10"#, "max titrant"),
+        (r#""max_titrant_ml": 10, "colour": "red""#, "unknown field"),
     ] {
         let msg = json_error(&["curve", "--json"], &format!("{{{base}, {extra}}}"));
         assert!(msg.contains(expect), "{extra}: {msg}");
     }
-    let msg =
-        json_error(&["curve", "--json"], &format!("{{{}, \"max_titrant_l\": 0.01}}", base.replace("HCl", "HXYZ")));
+    let msg = json_error(&["curve", "--json"], &format!("{{{}, \"max_titrant_ml\": 10}}", base.replace("HCl", "HXYZ")));
     assert!(msg.starts_with("titrant: ") && msg.contains("known formulas"), "{msg}");
     let msg = json_error(
         &["curve", "--json"],
-        r#"{"sample": {"volume_l": 0, "dissolved": {}}, "titrant": {"dissolved": {"HCl": 0.1}}, "max_titrant_l": 0.01}"#,
+        r#"{"sample": {"volume_ml": 0, "dissolved": {}}, "titrant": {"dissolved": {"HCl": 0.1}}, "max_titrant_ml": 10}"#,
     );
     assert!(msg.contains("sample volume"), "{msg}");
-    json_error(&["curve", "--json", "--points", "64"], &format!("{{{base}, \"max_titrant_l\": 0.01}}"));
+    json_error(&["curve", "--json", "--point-count", "64"], &format!("{{{base}, \"max_titrant_ml\": 10}}"));
     json_error(&["curve", "--json"], "");
+    // Keys renamed for one vocabulary are answered with their new names.
+    for (old, new) in [("max_titrant_l", "max_titrant_ml"), ("points", "point_count")] {
+        let msg = json_error(&["curve", "--json"], &format!("{{{base}, \"max_titrant_ml\": 10, \"{old}\": 1}}"));
+        assert!(msg.contains(&format!("\"{old}\" is now \"{new}\"")), "{msg}");
+    }
 
     let dir = scratch("curve-errors");
     let missing = dir.join("no-such-dir").join("c.svg");
@@ -269,7 +273,7 @@ fn the_alkalinity_endpoint_is_found_at_the_default_point_count() {
     for points in [None, Some("32"), Some("256")] {
         let mut a: Vec<&str> = args.to_vec();
         if let Some(p) = points {
-            a.extend(["--points", p]);
+            a.extend(["--point-count", p]);
         }
         let out = ok_table(&a);
         let section = out.split("Equivalence points on the curve").nth(1).unwrap();

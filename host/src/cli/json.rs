@@ -48,12 +48,35 @@ pub fn read_input(stdin: &mut dyn Read) -> Result<String, CliError> {
     String::from_utf8(bytes).map_err(|_| CliError::new("input on stdin is not valid UTF-8"))
 }
 
+/// Request keys renamed so that every key carries its unit and means one thing (README,
+/// "Vocabulary"): old key → new key and what changed.
+pub const RENAMED_KEYS: &[(&str, &str, &str)] = &[
+    ("volume_l", "volume_ml", "lab volumes are in mL"),
+    ("sample_volume_l", "sample_volume_ml", "lab volumes are in mL"),
+    ("max_titrant_l", "max_titrant_ml", "lab volumes are in mL"),
+    ("points", "point_count", "`points` is always a list of points"),
+];
+
+/// The hint for a serde "unknown field `KEY`" message whose key was renamed.
+fn renamed_hint(message: &str) -> Option<String> {
+    let key = message.split("unknown field `").nth(1)?.split('`').next()?;
+    RENAMED_KEYS
+        .iter()
+        .find(|(old, _, _)| *old == key)
+        .map(|(old, new, why)| format!(" (\"{old}\" is now \"{new}\": {why}; see README, Vocabulary)"))
+}
+
 /// Parses a JSON request; `example` shows the expected shape in the error for empty input.
+/// A key that was renamed is answered with its new name.
 pub fn parse<T: DeserializeOwned>(text: &str, example: &str) -> Result<T, CliError> {
     if text.trim().is_empty() {
         return Err(CliError::new(format!("no JSON on stdin; expected an object like {example}")));
     }
-    serde_json::from_str(text).map_err(|e| CliError::new(format!("invalid JSON input: {e}")))
+    serde_json::from_str(text).map_err(|e| {
+        let message = e.to_string();
+        let hint = renamed_hint(&message).unwrap_or_default();
+        CliError::new(format!("invalid JSON input: {message}{hint}"))
+    })
 }
 
 /// Serializes an output document, pretty-printed, with a final newline.

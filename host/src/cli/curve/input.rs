@@ -19,7 +19,7 @@ pub const MAX_POINTS: usize = 256;
 pub const MIN_POINTS: usize = 8;
 
 /// Shape of the JSON request, shown when stdin is empty.
-pub const JSON_EXAMPLE: &str = r#"{"sample": {"volume_l": 0.1, "dissolved": {"NaOH": 0.001, "Na2CO3": 0.002}}, "titrant": {"dissolved": {"HCl": 0.02}}, "max_titrant_l": 0.03, "points": 64}"#;
+pub const JSON_EXAMPLE: &str = r#"{"sample": {"volume_ml": 100, "dissolved": {"NaOH": 0.001, "Na2CO3": 0.002}}, "titrant": {"dissolved": {"HCl": 0.02}}, "max_titrant_ml": 30, "point_count": 64}"#;
 
 /// A complete `curve` request.
 #[derive(Clone, Debug, PartialEq)]
@@ -47,15 +47,15 @@ struct Request {
     activity: Option<String>,
     sample: SampleJson,
     titrant: ReagentJson,
-    max_titrant_l: f64,
+    max_titrant_ml: f64,
     #[serde(default)]
-    points: Option<f64>,
+    point_count: Option<f64>,
 }
 
 #[derive(Deserialize)]
 #[serde(deny_unknown_fields)]
 struct SampleJson {
-    volume_l: f64,
+    volume_ml: f64,
     dissolved: Entries,
 }
 
@@ -64,7 +64,7 @@ pub fn check_points(points: f64) -> Result<usize, CliError> {
     let ok = points.is_finite() && points.fract() == 0.0 && (MIN_POINTS as f64..=MAX_POINTS as f64).contains(&points);
     if !ok {
         return Err(CliError::new(format!(
-            "points {} must be a whole number from {MIN_POINTS} to {MAX_POINTS} (e.g. 64)",
+            "point count {} must be a whole number from {MIN_POINTS} to {MAX_POINTS} (e.g. 64)",
             num(points)
         )));
     }
@@ -93,8 +93,8 @@ impl CurveInput {
         let conditions = Conditions::new(r.temperature_c, r.activity.as_deref())?;
         let sample = composition::resolve(r.sample.dissolved.0, "sample")?;
         let titrant = Reagent::from_json(r.titrant, "titrant")?;
-        let points = r.points.unwrap_or(DEFAULT_POINTS as f64);
-        Self::new(conditions, sample, r.sample.volume_l, titrant, r.max_titrant_l, points)
+        let points = r.point_count.unwrap_or(DEFAULT_POINTS as f64);
+        Self::new(conditions, sample, r.sample.volume_ml / 1000.0, titrant, r.max_titrant_ml / 1000.0, points)
     }
 
     /// The built-in example; `points` overrides its resolution.
@@ -115,7 +115,7 @@ impl CurveInput {
         let titrant = Reagent::from_flag(a.titrant.as_deref().ok_or_else(|| missing("titrant"))?, None, "titrant")?;
         let max_ml = a.max_titrant_ml.ok_or_else(|| missing("max-titrant-ml"))?;
         let conditions = Conditions::from_args(a.conditions, None)?;
-        let points = a.points.unwrap_or(DEFAULT_POINTS as f64);
+        let points = a.point_count.unwrap_or(DEFAULT_POINTS as f64);
         Self::new(conditions, sample, sample_ml / 1000.0, titrant, max_ml / 1000.0, points)
     }
 }
@@ -140,6 +140,6 @@ mod tests {
     fn json_example_parses() {
         let i = CurveInput::from_json(JSON_EXAMPLE).unwrap();
         assert_eq!((i.points, i.sample.len()), (64, 2));
-        assert!(CurveInput::from_json(r#"{"sample": {"volume_l": 0, "dissolved": {}}, "titrant": {"dissolved": {"HCl": 0.1}}, "max_titrant_l": 0.01}"#).is_err());
+        assert!(CurveInput::from_json(r#"{"sample": {"volume_ml": 0, "dissolved": {}}, "titrant": {"dissolved": {"HCl": 0.1}}, "max_titrant_ml": 10}"#).is_err());
     }
 }

@@ -11,8 +11,9 @@ use crate::cli::reagent::ReagentOut;
 struct Output<'a> {
     points: Vec<PointOut>,
     equivalence_points: Equivalence,
-    sample_volume_l: Num,
-    max_titrant_l: Num,
+    sample_volume_ml: Num,
+    max_titrant_ml: Num,
+    point_count: usize,
     titrant: ReagentOut,
     temperature_c: Num,
     activity: &'static str,
@@ -81,8 +82,9 @@ pub fn render(r: &CurveReport, csv: Option<&str>, svg: Option<&str>) -> Result<S
                 })
                 .collect(),
         },
-        sample_volume_l: Num(r.input.sample_volume_l),
-        max_titrant_l: Num(r.input.max_titrant_l),
+        sample_volume_ml: Num(r.input.sample_volume_l * 1000.0),
+        max_titrant_ml: Num(r.input.max_titrant_l * 1000.0),
+        point_count: r.points.len(),
         titrant: r.input.titrant.to_out(),
         temperature_c: Num(r.input.conditions.celsius()),
         activity: r.input.conditions.activity_name(),

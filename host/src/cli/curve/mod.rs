@@ -18,26 +18,26 @@ Prints titrant added (mL), pH and buffer capacity (mol/L per pH) at each point, 
 equivalence points found on the curve (slope maxima) and predicted from the model
 (stoichiometry; the titrant's own weak acids or bases are not counted there), each with its pH.
 The spacing is adaptive, so the steep parts get the points. The slope maxima are found with the
-model's exact slope, refined between points, so they do not depend on --points; one counts when
+model's exact slope, refined between points, so they do not depend on --point-count; one counts when
 it is at least twice as steep as the flattest stretch on each side (common practice, no source). The CSV has the columns
-titrant_ml,ph,buffer_capacity_mol_per_l_per_ph; the SVG plots pH against mL with the
+titrant_ml,ph,buffer_capacity (mol/L per pH); the SVG plots pH against mL with the
 equivalence points marked and labelled with their pH. --out DIR writes both, as curve.csv and
 curve.svg. --example: 100 mL of alkaline-cleaner rinse from a fictional plating shop
 (1 mmol/L NaOH, 2 mmol/L Na2CO3, 20 °C) titrated with 0.02 mol/L HCl to 30 mL.
 
-JSON request (temperature_c, activity and points optional):
-  {\"temperature_c\": 25, \"activity\": \"ideal\", \"sample\": {\"volume_l\": 0.1, \"dissolved\": {\"NaOH\": 0.001}},
-   \"titrant\": {\"dissolved\": {\"HCl\": 0.02}}, \"max_titrant_l\": 0.03, \"points\": 64}
+JSON request (temperature_c, activity and point_count optional):
+  {\"temperature_c\": 25, \"activity\": \"ideal\", \"sample\": {\"volume_ml\": 100, \"dissolved\": {\"NaOH\": 0.001}},
+   \"titrant\": {\"dissolved\": {\"HCl\": 0.02}}, \"max_titrant_ml\": 30, \"point_count\": 64}
   The titrant may instead be {\"substance\": ..., \"mass_percent\": ..., \"density_kg_per_l\": ...}.
 
 JSON result: points [{titrant_ml, ph, buffer_capacity}], equivalence_points {curve: [{titrant_ml,
-ph}], model: [{titrant_ml, ph, system, step}]}, sample_volume_l, max_titrant_l, titrant,
+ph}], model: [{titrant_ml, ph, system, step}]}, sample_volume_ml, max_titrant_ml, point_count, titrant,
 temperature_c, activity, files {csv, svg} (null when not written).
 
 Examples:
   phdose curve NaOH=0.001 Na2CO3=0.002 --sample-ml 100 --titrant HCl=0.02 --max-titrant-ml 30
   phdose curve --json --csv c.csv --svg c.svg < request.json
-  phdose curve --example --points 128 --out figures";
+  phdose curve --example --point-count 128 --out figures";
 
 /// titration curve of a sample and its equivalence points (table, JSON, CSV, SVG plot)
 #[derive(Debug, clap::Args)]
@@ -55,9 +55,9 @@ pub struct Args {
     /// End of the titration, mL of titrant
     #[arg(long, value_name = "ML", value_parser = value::finite_number, allow_negative_numbers = true)]
     max_titrant_ml: Option<f64>,
-    /// Number of curve points, 8 to 256 [default: 64]
-    #[arg(long, value_name = "N", value_parser = value::finite_number, allow_negative_numbers = true)]
-    points: Option<f64>,
+    /// Number of curve points, 8 to 256 [default: 64] (`--points` is accepted too)
+    #[arg(long, alias = "points", value_name = "N", value_parser = value::finite_number, allow_negative_numbers = true)]
+    point_count: Option<f64>,
     #[command(flatten)]
     conditions: ConditionArgs,
     /// Write the curve as CSV to FILE
@@ -68,7 +68,7 @@ pub struct Args {
     /// Read the request as JSON from stdin and print the result as JSON
     #[arg(long)]
     json: bool,
-    /// Titrate the built-in invented sample (only --points and the output options go with it)
+    /// Titrate the built-in invented sample (only --point-count and the output options go with it)
     #[arg(long, conflicts_with_all = ["sample", "sample_ml", "titrant", "max_titrant_ml", "temperature_c", "activity"])]
     example: bool,
 }
@@ -77,13 +77,13 @@ pub struct Args {
 pub fn run(args: Args, stdin: &mut dyn Read) -> Result<String, CliError> {
     let mode = Mode::of(args.json);
     let (request, title) = if args.example {
-        (CurveInput::example(args.points)?, Some(example::TITLE))
+        (CurveInput::example(args.point_count)?, Some(example::TITLE))
     } else if mode == Mode::Json {
-        let given = [args.sample_ml, args.max_titrant_ml, args.points].iter().any(Option::is_some);
+        let given = [args.sample_ml, args.max_titrant_ml, args.point_count].iter().any(Option::is_some);
         if given || !args.sample.is_empty() || args.titrant.is_some() || args.conditions.given() {
             return Err(CliError::new(
-                "with --json the whole request is read as JSON from stdin; put sample, titrant, max_titrant_l and \
-                 points in the JSON object instead of the command line (only the output options go with --json)",
+                "with --json the whole request is read as JSON from stdin; put sample, titrant, max_titrant_ml and \
+                 point_count in the JSON object instead of the command line (only the output options go with --json)",
             ));
         }
         (CurveInput::from_json(&json_io::read_input(stdin)?)?, None)

@@ -54,9 +54,10 @@ pub fn compute(input: CurveInput) -> Result<CurveReport, CliError> {
     Ok(CurveReport { points, on_curve: found.to_vec(), model: model.to_vec(), input })
 }
 
-/// The CSV text: header `titrant_ml,ph,buffer_capacity_mol_per_l_per_ph`, one line per point.
+/// The CSV text: header `titrant_ml,ph,buffer_capacity` (the JSON keys; buffer capacity in mol/L
+/// per pH), one line per point. `fit --data` reads it as it is.
 pub fn csv(r: &CurveReport) -> String {
-    let mut s = String::from("titrant_ml,ph,buffer_capacity_mol_per_l_per_ph\n");
+    let mut s = String::from("titrant_ml,ph,buffer_capacity\n");
     for p in &r.points {
         s.push_str(&format!("{},{},{}\n", p.titrant_l * 1000.0, p.ph, p.buffer_capacity_mol_per_l_per_ph));
     }

@@ -1,4 +1,5 @@
-//! The `speciate --json` output document. Its keys are a public contract: add, never rename.
+//! The `speciate --json` output document. Its keys follow README's vocabulary; the stable keys
+//! listed there are never renamed.
 
 use std::collections::BTreeMap;
 
@@ -15,17 +16,18 @@ struct Output<'a> {
     buffer_capacity: Num,
     iterations: u32,
     species: BTreeMap<&'a str, Num>,
-    totals: BTreeMap<&'a str, Num>,
+    totals_mol_per_l: BTreeMap<&'a str, Num>,
     temperature_c: Num,
     activity: &'static str,
     pkw: Num,
     neutral_ph: Num,
     strong_charge_eq_per_l: Num,
-    strong_ions: BTreeMap<&'a str, Num>,
+    strong_ions_mol_per_l: BTreeMap<&'a str, Num>,
     residual_eq_per_l: Num,
     davies_factor: Num,
     activity_coefficients: Gammas,
-    dissolved: Vec<DissolvedOut<'a>>,
+    dissolved: BTreeMap<&'a str, Num>,
+    substances: Vec<DissolvedOut<'a>>,
     systems: Vec<SystemOut<'a>>,
     alkalinity: AlkalinityOut,
 }
@@ -88,13 +90,13 @@ pub fn render(r: &SpeciateReport) -> Result<String, CliError> {
         buffer_capacity: Num(eq.buffer_capacity_mol_per_l_per_ph),
         iterations: eq.iterations,
         species,
-        totals: r.systems.iter().map(|s| (s.key, Num(s.total_mol_per_l))).collect(),
+        totals_mol_per_l: r.systems.iter().map(|s| (s.key, Num(s.total_mol_per_l))).collect(),
         temperature_c: Num(r.conditions().celsius()),
         activity: r.conditions().activity_name(),
         pkw: Num(r.pkw),
         neutral_ph: Num(r.pkw / 2.0),
         strong_charge_eq_per_l: Num(r.strong_charge_eq_per_l),
-        strong_ions: r.strong_ions.iter().map(|s| (s.formula, Num(s.mol_per_l))).collect(),
+        strong_ions_mol_per_l: r.strong_ions.iter().map(|s| (s.formula, Num(s.mol_per_l))).collect(),
         residual_eq_per_l: Num(eq.residual_eq_per_l),
         davies_factor: Num(eq.davies_factor),
         activity_coefficients: Gammas { z1, z2, z3 },
@@ -105,7 +107,8 @@ pub fn render(r: &SpeciateReport) -> Result<String, CliError> {
                 r.alkalinity.acidity_eq_per_l * 1000.0,
             )),
         },
-        dissolved: r
+        dissolved: r.input.dissolved.iter().map(|d| (d.given_as.as_str(), Num(d.mol_per_l))).collect(),
+        substances: r
             .input
             .dissolved
             .iter()

@@ -21,9 +21,10 @@ JSON request (temperature_c and activity optional; defaults 25 and \"davies\"):
   {\"temperature_c\": 25.0, \"activity\": \"davies\", \"dissolved\": {\"NaHCO3\": 0.002, \"HCl\": 0.001}}
 
 JSON result keys: ph, ionic_strength (mol/L), buffer_capacity (mol/L per pH unit),
-iterations, species (formula -> mol/L, with H+ and OH-), totals (system -> mol/L),
-temperature_c, activity, pkw, neutral_ph, strong_charge_eq_per_l, strong_ions,
-residual_eq_per_l, davies_factor, activity_coefficients {z1, z2, z3}, dissolved, systems.
+iterations, species (formula -> mol/L, with H+ and OH-), totals_mol_per_l (system -> mol/L),
+temperature_c, activity, pkw, neutral_ph, strong_charge_eq_per_l, strong_ions_mol_per_l,
+residual_eq_per_l, davies_factor, activity_coefficients {z1, z2, z3}, dissolved (as given ->
+mol/L, the request's shape), substances [{given_as, formula, name, mol_per_l, mg_per_l}], systems.
 
 Examples:
   phdose speciate NaHCO3=0.002 H2SO4=0.0006 --temperature-c 18 --activity ideal
