@@ -1,4 +1,4 @@
-//! Hazard verdicts of the dose plan (issue 11, finding 1): acid dosed onto water that carries
+//! Hazard verdicts of the dose plan: acid dosed onto water that carries
 //! hypochlorite or sulfide to a setpoint where chlorine or hydrogen sulfide is released must not
 //! be "all clear". Scenarios are invented: the cleaning-station effluent of a fictional dairy
 //! (hypochlorite sanitiser in brine) and the scrubber bleed of a fictional tannery (sulfide).

@@ -1,6 +1,6 @@
 //! `phdose plan` hazard verdicts: acid onto hypochlorite (chlorine), acid onto sulfide (hydrogen
-//! sulfide), a reagent below its crystallisation temperature. Each case is issue 11's finding 1
-//! as a command; today's code said `verdict ok` for all three.
+//! sulfide), a reagent below its crystallisation temperature. Each case is a command that said
+//! `verdict ok` before the hazard checks existed.
 //!
 //! Scenarios are invented: the effluent of a fictional dairy's cleaning station (hypochlorite
 //! sanitiser in brine), the scrubber bleed of a fictional tannery (sulfide), the rinse of a

@@ -139,7 +139,7 @@ fn influent_in_band_needs_no_dose() {
 }
 
 /// Stripping-line rinse at a fictional anodizing shop: sulfuric acid only, no buffer, 50 %
-/// caustic, a 2 L/h pump with a fine step (the finding 3).
+/// caustic, a 2 L/h pump with a fine step (a remedy used to contradict the other checks here).
 fn strip() -> Req {
     Req {
         influent: vec![("H2SO4", 0.003)],
