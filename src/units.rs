@@ -88,6 +88,10 @@ pub const MAX_FLOW_L_PER_H: f64 = 1e7;
 /// (common practice, no source): below it a "stream" is drops, and the closed form's gain
 /// (inversely proportional to the flow) runs to absurd values (1e303 pH per L/h at 1e-300 L/h).
 pub const MIN_PLANNED_FLOW_L_PER_H: f64 = 1e-3;
+/// Smallest tank liquid volume accepted, L (the skid file's range for `control.tank_volume_l`).
+pub const MIN_TANK_VOLUME_L: f64 = 1.0;
+/// Largest tank liquid volume accepted, L (1000 m³; the skid file's range).
+pub const MAX_TANK_VOLUME_L: f64 = 1e6;
 /// Lowest and highest pH a setpoint or a pH input may have.
 pub const PH_SCALE: (f64, f64) = (0.0, 14.0);
 
@@ -110,6 +114,8 @@ pub enum Quantity {
     PumpMin,
     /// A width on the pH scale (a control band), pH: above 0, up to 14.
     PhWidth,
+    /// A tank's liquid volume, L: [`MIN_TANK_VOLUME_L`]–[`MAX_TANK_VOLUME_L`].
+    TankVolume,
 }
 
 impl Quantity {
@@ -123,6 +129,7 @@ impl Quantity {
             Self::PumpStep => ("pump step", "above 0, up to the pump maximum"),
             Self::PumpMin => ("pump minimum", "0 up to the pump maximum"),
             Self::PhWidth => ("pH band", "above 0, up to 14 pH"),
+            Self::TankVolume => ("tank volume", "1-1e6 L"),
         }
     }
 }
@@ -214,6 +221,23 @@ impl<R: Real> LitresPerHour<R> {
     }
 }
 
+/// A tank's liquid volume in litres, checked: finite, [`MIN_TANK_VOLUME_L`]–[`MAX_TANK_VOLUME_L`].
+#[derive(Clone, Copy, Debug, PartialEq, PartialOrd)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct TankVolume<R: Real>(R);
+
+impl<R: Real> TankVolume<R> {
+    /// Checks that `litres` is finite and within [`MIN_TANK_VOLUME_L`]–[`MAX_TANK_VOLUME_L`].
+    pub fn new(litres: R) -> Result<Self, InvalidInput> {
+        within(Quantity::TankVolume, litres, MIN_TANK_VOLUME_L, MAX_TANK_VOLUME_L, false).map(Self)
+    }
+
+    /// The value, L (1–10⁶).
+    pub fn litres(self) -> R {
+        self.0
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -248,6 +272,10 @@ mod tests {
             Err(InvalidInput { quantity: Quantity::InfluentFlow, value: 1e-300 })
         );
         assert!(LitresPerHour::new(MIN_PLANNED_FLOW_L_PER_H).unwrap().plannable(Quantity::InfluentFlow).is_ok());
+        assert_eq!(TankVolume::new(250.0_f32).unwrap().litres(), 250.0);
+        assert!(TankVolume::new(1.0_f64).is_ok() && TankVolume::new(1e6_f64).is_ok());
+        assert_eq!(TankVolume::new(0.5_f64), Err(InvalidInput { quantity: Quantity::TankVolume, value: 0.5 }));
+        assert!(TankVolume::new(f64::INFINITY).is_err() && TankVolume::new(1.1e6_f64).is_err());
         let zero = LitresPerHour::new(0.0_f64).unwrap();
         assert_eq!(
             zero.positive(Quantity::InfluentFlow),

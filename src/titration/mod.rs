@@ -3,7 +3,8 @@
 //! dose for a setpoint with process gain and boot checks ([`dose`]) and their remedies
 //! ([`remedy`]), alkalinity ([`alkalinity`]), influent characterisation by Levenberg–Marquardt
 //! ([`fit`]), stage advice ([`stages`]) and the hazards no pH check sees: gas release, reagent
-//! crystallisation ([`hazard`]).
+//! crystallisation ([`hazard`]), and the worst case of a stuck pump: the pH the tank heads to and
+//! the time to cross each hard limit ([`worst`]).
 
 pub mod alkalinity;
 pub mod curve;
@@ -14,6 +15,7 @@ pub mod reagent;
 pub mod remedy;
 pub mod stages;
 pub mod stream;
+pub mod worst;
 
 pub use curve::{CurvePoint, EquivalencePoint, Titration, inflections};
 pub use dose::{DoseCheck, DoseError, DosePlan, DoseRequest, InBand, Pump, plan};

@@ -38,8 +38,8 @@ use phdose::probe::vote::{VoteSettings, vote};
 use phdose::probe::{Probe, nernst};
 use phdose::titration::alkalinity::{self, AcidPoint};
 use phdose::titration::fit::{self, Effective, FitSpec};
-use phdose::titration::{self, CurvePoint, DoseRequest, EquivalencePoint, Titration, stages};
-use phdose::units::{Celsius, LitresPerHour};
+use phdose::titration::{self, CurvePoint, DoseRequest, EquivalencePoint, Titration, stages, worst};
+use phdose::units::{Celsius, LitresPerHour, TankVolume};
 
 fn sink<R: Real>(x: R) {
     black_box(x);
@@ -78,6 +78,15 @@ fn dosing<R: Real>() -> Option<()> {
     let p = titration::plan(&influent, flow, &reagent, &request).ok()?;
     sink(p.resolution_ph);
     sink(p.reagent_flow_l_per_h);
+    let limits = worst::HardLimits::new(Some(r::<R>(1.0)), Some(r::<R>(10.0))).ok()?;
+    let tank = worst::Tank {
+        volume: TankVolume::new(r::<R>(250.0)).ok()?,
+        planned_reagent_flow: LitresPerHour::new(p.reagent_flow_l_per_h).ok()?,
+    };
+    let pump_max = LitresPerHour::new(r::<R>(10.0)).ok()?;
+    let stuck = worst::stuck(&influent, flow, &reagent, pump_max, limits, Some(tank)).ok()?;
+    sink(stuck.end_ph);
+    sink(stuck.time_constant_s.unwrap_or(r::<R>(0.0)));
     let a = alkalinity::alkalinity(&influent).ok()?;
     sink(a.total_eq_per_l);
     let st = stages::advise(r::<R>(2.0), r::<R>(11.0), r::<R>(7.0)).ok()?;

@@ -7,7 +7,10 @@ use phdose::titration::DoseCheck;
 use phdose::titration::hazard;
 use serde::Serialize;
 
+use phdose::titration::worst::{Crossing, Stuck};
+
 use super::report::{PlanReport, Unreachable};
+use super::worst::{CornerFlag, WORST_CAUTION, WorstReport};
 use crate::cli::CliError;
 use crate::cli::caution::PLAN_CAUTION;
 use crate::cli::json::{self, Num, opt};
@@ -46,6 +49,113 @@ struct Output {
     caution: String,
     hazard: bool,
     reagent_temperature_c: Num,
+    worst_case: WorstOut,
+}
+
+#[derive(Serialize)]
+struct WorstOut {
+    stuck_max_ph: Option<Num>,
+    stuck_zero_ph: Option<Num>,
+    tank_volume_l: Option<Num>,
+    low_limit_ph: Option<Num>,
+    high_limit_ph: Option<Num>,
+    stuck_max: Option<StuckOut>,
+    stuck_zero: Option<StuckOut>,
+    min_flow_l_per_h: Num,
+    max_flow_l_per_h: Num,
+    flow_range_given: bool,
+    dose_corners: Vec<CornerOut>,
+    reagent_per_day_l: Option<Num>,
+    reagent_per_day_kg: Option<Num>,
+    substances_per_day_kg: BTreeMap<&'static str, Num>,
+    notes: Vec<String>,
+    caution: &'static str,
+}
+
+#[derive(Serialize)]
+struct StuckOut {
+    reagent_flow_l_per_h: Num,
+    end_ph: Num,
+    start_ph: Option<Num>,
+    time_constant_s: Option<Num>,
+    crosses_low_limit: Option<bool>,
+    crosses_high_limit: Option<bool>,
+    time_to_low_limit_s: Option<Num>,
+    time_to_high_limit_s: Option<Num>,
+    solves: u32,
+}
+
+#[derive(Serialize)]
+struct CornerOut {
+    influent_flow_l_per_h: Num,
+    strength_factor: Num,
+    reagent_flow_l_per_h: Option<Num>,
+    flag: &'static str,
+    reason: Option<String>,
+}
+
+/// Crossed (or not, `None` without the limit) and when (`None` for never or without a tank).
+fn crossing(c: Option<Crossing<f64>>) -> (Option<bool>, Option<Num>) {
+    match c {
+        None => (None, None),
+        Some(Crossing::Never) => (Some(false), None),
+        Some(Crossing::Beyond) => (Some(true), None),
+        Some(Crossing::After { time_s }) => (Some(true), Some(Num(time_s))),
+    }
+}
+
+fn stuck_out(s: &Stuck<f64>) -> StuckOut {
+    let (crosses_low_limit, time_to_low_limit_s) = crossing(s.low_limit);
+    let (crosses_high_limit, time_to_high_limit_s) = crossing(s.high_limit);
+    StuckOut {
+        reagent_flow_l_per_h: Num(s.reagent_flow_l_per_h),
+        end_ph: Num(s.end_ph),
+        start_ph: opt(s.start_ph),
+        time_constant_s: opt(s.time_constant_s),
+        crosses_low_limit,
+        crosses_high_limit,
+        time_to_low_limit_s,
+        time_to_high_limit_s,
+        solves: s.solves,
+    }
+}
+
+fn worst_out(w: &WorstReport) -> WorstOut {
+    WorstOut {
+        stuck_max_ph: w.stuck_max.map(|s| Num(s.end_ph)),
+        stuck_zero_ph: w.stuck_zero.map(|s| Num(s.end_ph)),
+        tank_volume_l: opt(w.tank_volume_l),
+        low_limit_ph: opt(w.limits.low_ph()),
+        high_limit_ph: opt(w.limits.high_ph()),
+        stuck_max: w.stuck_max.as_ref().map(stuck_out),
+        stuck_zero: w.stuck_zero.as_ref().map(stuck_out),
+        min_flow_l_per_h: Num(w.min_flow_l_per_h),
+        max_flow_l_per_h: Num(w.max_flow_l_per_h),
+        flow_range_given: w.flow_range_given,
+        dose_corners: w
+            .corners
+            .iter()
+            .map(|c| CornerOut {
+                influent_flow_l_per_h: Num(c.influent_flow_l_per_h),
+                strength_factor: Num(c.strength_factor),
+                reagent_flow_l_per_h: opt(c.reagent_flow_l_per_h),
+                flag: c.flag.key(),
+                reason: match &c.flag {
+                    CornerFlag::Unreachable(why) => Some(why.clone()),
+                    _ => None,
+                },
+            })
+            .collect(),
+        reagent_per_day_l: w.per_day.as_ref().map(|d| Num(d.litres)),
+        reagent_per_day_kg: w.per_day.as_ref().and_then(|d| opt(d.kg)),
+        substances_per_day_kg: w
+            .per_day
+            .as_ref()
+            .map(|d| d.substances_kg.iter().map(|(f, kg)| (*f, Num(*kg))).collect())
+            .unwrap_or_default(),
+        notes: w.notes.clone(),
+        caution: WORST_CAUTION,
+    }
 }
 
 #[derive(Serialize)]
@@ -254,6 +364,7 @@ pub fn render(r: &PlanReport) -> Result<String, CliError> {
         caution: PLAN_CAUTION.replace('\n', " "),
         hazard: r.hazard(),
         reagent_temperature_c: Num(i.reagent_celsius()),
+        worst_case: worst_out(&r.worst),
     };
     json::render(&out)
 }

@@ -10,6 +10,7 @@ mod input;
 mod json;
 mod report;
 mod table;
+mod worst;
 
 use std::io::Read;
 
@@ -28,16 +29,36 @@ temperature; --reagent-temperature-c gives its tank's temperature for the crysta
 Hazard checks (error level; SAFETY.md lists them with their sources): acid dosed to a setpoint
 below the pH where chlorine (Cl2, from hypochlorite) or hydrogen sulfide (H2S, from sulfide) is
 released: the gas-forming species above 1 % of its total, computed from the speciation; a reagent
-grade stored below its crystallisation temperature (table with sources). --example: the rinse-water neutralization skid of a fictional plating shop (18 °C,
-1200 L/h, 25 % caustic, pump 10 L/h with 0.01 L/h steps, band 0.3 pH); any option, or --no-pump,
-changes it.
+grade stored below its crystallisation temperature (table with sources).
 
-JSON request (temperature_c, activity, pump and band_ph optional):
+Worst case (always shown; a model estimate: the hardwired interlocks are still required, see
+SAFETY.md): the pH the tank heads to with the pump stuck at its maximum (influent and reagent at
+--pump-max-l-per-h, mixed) and stuck at zero (the influent's own pH). With --tank-volume-l and
+the hard limits --low-limit-ph / --high-limit-ph (the skid file's control.tank_volume_l,
+control.low_limit_ph, control.high_limit_ph; the setpoint must lie between the limits), the time
+from the setpoint state to each limit: an ideal stirred tank on the reaction invariants,
+x(t) = x_end + (x_0 - x_end)·exp(-t/τ), τ = V/(Q_influent + Q_reagent), the pH solved along
+that path (t = τ, 2τ ... 64τ, then at most 48 halvings: at most 57 pH solves per stuck case);
+\"never\" when the end pH does not lie beyond the limit. Dose corners: the reagent flow for the
+setpoint at the lowest, design and highest influent flow (--min-flow-l-per-h, --max-flow-l-per-h;
+default 50 % and 150 % of --flow-l-per-h, a round range of our own, not a standard) times every
+influent total x0.75, x1 and x1.25, flagged >max (beyond the pump) or <min (below its minimum or
+one step). Reagent use: the planned flow x 24 h in L/day, and in kg/day with the grade's density
+(a mol/L reagent has no density: its dissolved substances' mass, mol/L x molar mass, only).
+
+--example: the rinse-water neutralization skid of a fictional plating shop (18 °C, 1200 L/h,
+600-1800 L/h, 25 % caustic, pump 10 L/h with 0.01 L/h steps, band 0.3 pH, 250 L tank, hard
+limits pH 1 and 10: the built-in skid file's values); any option, or --no-pump, changes it.
+
+JSON request (temperature_c, activity, pump, band_ph, tank_volume_l, low_limit_ph,
+high_limit_ph, influent min_flow_l_per_h and max_flow_l_per_h optional):
   {\"temperature_c\": 25, \"activity\": \"davies\",
    \"influent\": {\"flow_l_per_h\": 1200, \"dissolved\": {\"NaHCO3\": 0.002, \"HCl\": 0.001}},
    \"reagent\": {\"dissolved\": {\"NaOH\": 6.25}},
    \"setpoint_ph\": 7.0, \"pump\": {\"max_l_per_h\": 10, \"step_l_per_h\": 0.01}, \"band_ph\": 0.3}
-  The pump may carry \"min_l_per_h\" (its lowest steady flow, default 0).
+  The pump may carry \"min_l_per_h\" (its lowest steady flow, default 0); the influent
+  \"min_flow_l_per_h\" and \"max_flow_l_per_h\"; the request \"tank_volume_l\": 250,
+  \"low_limit_ph\": 1, \"high_limit_ph\": 10.
   The reagent may instead be {\"substance\": \"NaOH\", \"mass_percent\": 25, \"density_kg_per_l\": 1.274}
   (density optional for the grades above).
 
@@ -56,6 +77,14 @@ JSON result (stable keys first):
   caution, hazard (bool), reagent_temperature_c.
   gas_release: gas (\"Cl2\"|\"H2S\"), gas_name, release_below_ph, gas_fraction (at the setpoint),
   basis; reagent_crystallises: crystallises_below_c, reagent_temperature_c, source.
+  worst_case: stuck_max_ph (null without a pump), stuck_zero_ph, tank_volume_l, low_limit_ph,
+  high_limit_ph, stuck_max and stuck_zero ({reagent_flow_l_per_h, end_ph, start_ph,
+  time_constant_s, crosses_low_limit, crosses_high_limit (null without that limit),
+  time_to_low_limit_s, time_to_high_limit_s (null for never, or without the tank volume),
+  solves}), min_flow_l_per_h, max_flow_l_per_h, flow_range_given, dose_corners
+  [{influent_flow_l_per_h, strength_factor, reagent_flow_l_per_h, flag:
+  ok|no_dose|beyond_pump|below_turndown|unreachable, reason}], reagent_per_day_l,
+  reagent_per_day_kg (null for a mol/L reagent), substances_per_day_kg, notes, caution.
 
 Exit codes: 0 when a plan was worked out, whatever the verdicts (check `reachable` and
 `all_clear`); 2 for input and solver errors.
@@ -68,7 +97,8 @@ Examples:
   phdose plan H2SO4=0.0012 NaHCO3=0.001 --flow-l-per-h 1200 --reagent NaOH=25% --setpoint-ph 7 \\
               --pump-max-l-per-h 10 --pump-step-l-per-h 0.01 --band-ph 0.3
   phdose plan --json < request.json
-  phdose plan --example --setpoint-ph 8.5 --no-pump";
+  phdose plan --example --setpoint-ph 8.5 --no-pump
+  phdose plan --example --tank-volume-l 1000 --high-limit-ph 11";
 
 /// feed-forward reagent flow for a setpoint, with process gain, pump and steepness checks
 #[derive(Debug, clap::Args)]
@@ -106,6 +136,21 @@ pub struct Args {
     /// check [default: the influent's]
     #[arg(long, value_name = "C", value_parser = value::finite_number, allow_negative_numbers = true)]
     pub reagent_temperature_c: Option<f64>,
+    /// Tank liquid volume, L (1 to 1e6): enables the times to the hard limits in the worst case
+    #[arg(long, value_name = "L", value_parser = value::finite_number, allow_negative_numbers = true)]
+    pub tank_volume_l: Option<f64>,
+    /// Low hard limit, pH: below it the controller trips (the skid file's control.low_limit_ph)
+    #[arg(long, value_name = "PH", value_parser = value::finite_number, allow_negative_numbers = true)]
+    pub low_limit_ph: Option<f64>,
+    /// High hard limit, pH: above it the controller trips (the skid file's control.high_limit_ph)
+    #[arg(long, value_name = "PH", value_parser = value::finite_number, allow_negative_numbers = true)]
+    pub high_limit_ph: Option<f64>,
+    /// Lowest influent flow for the dose corners, L/h [default: 50 % of --flow-l-per-h]
+    #[arg(long, value_name = "L_PER_H", value_parser = value::finite_number, allow_negative_numbers = true)]
+    pub min_flow_l_per_h: Option<f64>,
+    /// Highest influent flow for the dose corners, L/h [default: 150 % of --flow-l-per-h]
+    #[arg(long, value_name = "L_PER_H", value_parser = value::finite_number, allow_negative_numbers = true)]
+    pub max_flow_l_per_h: Option<f64>,
     /// Plan without a pump (drops the example's pump and the pump checks)
     #[arg(long, conflicts_with_all = ["pump_max_l_per_h", "pump_step_l_per_h", "pump_min_l_per_h"])]
     pub no_pump: bool,
@@ -130,6 +175,11 @@ impl Args {
             self.pump_min_l_per_h,
             self.band_ph,
             self.reagent_temperature_c,
+            self.tank_volume_l,
+            self.low_limit_ph,
+            self.high_limit_ph,
+            self.min_flow_l_per_h,
+            self.max_flow_l_per_h,
         ];
         !self.influent.is_empty()
             || self.reagent.is_some()

@@ -6,6 +6,7 @@ use phdose::titration::{DoseCheck, DoseError, DosePlan, DoseRequest, InBand, dos
 use phdose::units::LitresPerHour;
 
 use super::input::PlanInput;
+use super::worst::{self, WorstReport};
 use crate::cli::CliError;
 use crate::cli::composition::{self, HostSolution};
 use crate::cli::format::{fixed, sig};
@@ -46,6 +47,8 @@ pub struct PlanReport {
     pub stage_checks: Vec<StageCheck<f64>>,
     /// Remarks about the request (checks skipped for lack of data).
     pub notes: Vec<String>,
+    /// The worst case: pump stuck at max and at zero, dose corners, reagent per day.
+    pub worst: WorstReport,
 }
 
 impl PlanReport {
@@ -250,7 +253,18 @@ pub fn compute(input: PlanInput) -> Result<PlanReport, CliError> {
         }
         _ => Vec::new(),
     };
-    Ok(PlanReport { influent_ph: influent_eq.ph, plan, unreachable, verdicts, stages, stage_checks, notes, input })
+    let worst = worst::compute(&input, &influent, &reagent, plan.as_ref())?;
+    Ok(PlanReport {
+        influent_ph: influent_eq.ph,
+        plan,
+        unreachable,
+        verdicts,
+        stages,
+        stage_checks,
+        notes,
+        worst,
+        input,
+    })
 }
 
 #[cfg(test)]
