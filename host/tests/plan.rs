@@ -63,7 +63,8 @@ fn contract_keys_and_round_trip() {
     // The linear gain times the step approximates the real step (buffered water).
     assert!((num(&doc, "gain_ph_per_l_per_h") * 0.01 / step - 1.0).abs() < 0.1);
     assert!(num(&doc, "mixture_ionic_strength") > 0.0);
-    assert!(doc["rounds"].as_u64().unwrap() >= 1);
+    assert!(doc["activity_rounds"].as_u64().unwrap() >= 1);
+    assert!(doc.get("rounds").is_none(), "one name per quantity");
     assert_eq!(doc["checks"], serde_json::json!([]));
     assert!(doc["unreachable"].is_null());
     let stages = &doc["stage_advice"];

@@ -36,7 +36,7 @@ struct Output {
     reagent_mol_per_l: Option<Num>,
     reagent: ReagentOut,
     mixture_ionic_strength: Option<Num>,
-    rounds: Option<u32>,
+    activity_rounds: Option<u32>,
     checks: Vec<CheckOut>,
     unreachable: Option<UnreachableOut>,
     in_band: Option<InBandOut>,
@@ -263,7 +263,7 @@ pub fn render(r: &PlanReport) -> Result<String, CliError> {
         reagent_mol_per_l: opt(i.reagent.single_mol_per_l()),
         reagent: i.reagent.to_out(),
         mixture_ionic_strength: p.map(|p| Num(p.mixture_ionic_strength_mol_per_l)),
-        rounds: p.map(|p| p.rounds),
+        activity_rounds: p.map(|p| p.rounds),
         checks: p
             .map(|p| {
                 p.checks

@@ -69,7 +69,8 @@ JSON result (stable keys first):
   \"below turndown: ...\", \"too steep: ...\", \"HAZARD ...\").
   Also: all_clear, setpoint_ph, influent_ph, influent_flow_l_per_h, influent_dissolved (formula ->
   mol/L), gain_ph_per_step (pH change of one pump step, a real solve), reagent_mol_per_l
-  (one-substance reagents), reagent, mixture_ionic_strength, rounds, checks [{kind:
+  (one-substance reagents), reagent, mixture_ionic_strength, activity_rounds (ionic-strength rounds of the dose
+  computation; not solver iterations), checks [{kind:
   beyond_pump|below_turndown|too_steep|resolution_limited|gas_release|reagent_crystallises, ...}],
   unreachable ({kind: wrong_direction|beyond_reagent, limit_ph} or null), in_band ({influent_ph,
   low_ph, high_ph, reagent_reaches_setpoint} or null), stage_advice (with stage_checks: each stage
