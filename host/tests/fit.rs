@@ -385,6 +385,16 @@ fn a_fit_that_misses_the_data_is_refused_with_exit_1() {
     assert_eq!(doc["refusal"], "residual_above_bound", "{doc}");
     assert!(doc["reason"].as_str().unwrap().contains("residual RMS"), "{doc}");
     assert!(num(&doc, "rms_ph") > 1.0, "{doc}");
+    // The bounds it was held to: the RMS bound, the data's pH range (the curve's own first and
+    // last pH: it falls monotonically with acid) and the allowed pKa range 0.3 pH inside it.
+    assert_eq!(num(&doc, "max_rms_ph"), 0.05);
+    assert_eq!(doc["converged"], true, "{doc}");
+    let text = std::fs::read_to_string(lab).unwrap();
+    let ph: Vec<f64> = text.lines().skip(1).map(|l| l.split(',').nth(1).unwrap().parse().unwrap()).collect();
+    let range = |key: &str| (doc[key][0].as_f64().unwrap(), doc[key][1].as_f64().unwrap());
+    assert_eq!(range("data_ph_range"), (*ph.last().unwrap(), ph[0]));
+    let (lo, hi) = range("allowed_pka_range");
+    assert!((lo - (ph.last().unwrap() + 0.3)).abs() < 1e-12 && (hi - (ph[0] - 0.3)).abs() < 1e-12, "{doc}");
 }
 
 /// Carbonate and one buffer on the same data ran into the iteration cap (60) with the buffer's

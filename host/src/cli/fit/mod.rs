@@ -38,7 +38,8 @@ Quality: a fit is refused, with exit code 1 and the reason (first line of the re
 \"quality\": \"refused\" with \"refusal\" and \"reason\" in JSON), when
   ill_conditioned       the data do not determine a parameter (it is named); no values shown
   not_converged         the iterations stopped at their cap (60) while still improving
-  pka_outside_data      a fitted pKa lies more than 0.5 pH outside the data's pH range
+  pka_outside_data      a fitted pKa is not 0.3 pH inside the pH range the data cover: the
+                        data must bracket it, or they show only the tail of that buffer
   residual_above_bound  the RMS residual is above 0.05 pH (a few times a lab meter's noise)
 checked in that order. A refused fit's numbers are shown marked as such: they are not the
 sample's. Bad input (unreadable or disordered data, impossible volumes) is exit code 2.
@@ -55,7 +56,8 @@ JSON result: quality (\"accepted\" or \"refused\"), refusal (null or one of the 
 reason (null or the refusal in words with what to try), strong_charge_meq_per_l {value,
 standard_error}, carbonate_mmol_per_l (or null), buffers [{total_mmol_per_l {value,
 standard_error}, pka {value, standard_error}}], rms_ph, max_rms_ph (the bound), points,
-iterations, converged, data_ph_range [lowest, highest], allowed_pka_range [lowest, highest],
+iterations, converged, data_ph_range [lowest, highest], allowed_pka_range [lowest, highest]
+(the data's range narrowed by 0.3 pH at each end),
 start {strong_charge_meq_per_l, carbonate_mmol_per_l, buffer_pkas, basis}, sample_volume_l,
 titrant, temperature_c, activity, svg_file. An ill-conditioned refusal has no result: the
 values, rms_ph, iterations and converged are null and buffers is empty.

@@ -3,7 +3,9 @@
 use heapless::Vec as FixedVec;
 use phdose::chem::Solution;
 use phdose::titration::curve::{CurvePoint, Titration, strong_equivalents_eq_per_l};
-use phdose::titration::fit::{self, Effective, FitError, FitQuality, FitResult, FitSpec, PKA_MARGIN_PH, PKA_RANGE};
+use phdose::titration::fit::{
+    self, Effective, FitError, FitQuality, FitResult, FitSpec, PKA_INSIDE_DATA_PH, PKA_RANGE,
+};
 
 use super::input::FitInput;
 use crate::cli::CliError;
@@ -54,10 +56,11 @@ impl FitReport {
             .fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), (_, p)| (lo.min(*p), hi.max(*p)))
     }
 
-    /// The pH range a fitted pKa must lie in: the data's, widened by `PKA_MARGIN_PH`.
+    /// The pH range a fitted pKa must lie in: the data's, narrowed by `PKA_INSIDE_DATA_PH` at
+    /// each end (empty, lowest above highest, when the data span less than twice that).
     pub fn allowed_pka_range(&self) -> (f64, f64) {
         let (lo, hi) = self.data_ph_range();
-        (lo - PKA_MARGIN_PH, hi + PKA_MARGIN_PH)
+        (lo + PKA_INSIDE_DATA_PH, hi - PKA_INSIDE_DATA_PH)
     }
 }
 

@@ -2,7 +2,7 @@
 
 use std::fmt::Write;
 
-use phdose::titration::fit::{FitResult, MAX_FIT_ITERATIONS, MAX_RMS_PH, PKA_MARGIN_PH};
+use phdose::titration::fit::{FitResult, MAX_FIT_ITERATIONS, MAX_RMS_PH};
 
 use super::report::{FitReport, refusal_hint, refusal_key};
 use crate::cli::caution::CAUTION;
@@ -112,17 +112,13 @@ fn quality_line(r: &FitReport) -> String {
         Some(e) => format!("REFUSED ({}): see above", refusal_key(e).replace('_', " ")),
         None => {
             let (lo, hi) = r.allowed_pka_range();
+            // The data's range narrowed by PKA_INSIDE_DATA_PH at each end.
             let pka = if r.input.buffers > 0 {
-                format!(
-                    ", pKa within pH {} to {} (the data's range ± {})",
-                    fixed(lo, 2),
-                    fixed(hi, 2),
-                    num(PKA_MARGIN_PH)
-                )
+                format!(", pKa within pH {}-{}", fixed(lo, 2), fixed(hi, 2))
             } else {
                 String::new()
             };
-            format!("accepted: identifiable, converged, RMS within {} pH{pka}", num(MAX_RMS_PH))
+            format!("accepted: identifiable, converged, RMS <= {} pH{pka}", num(MAX_RMS_PH))
         }
     }
 }
