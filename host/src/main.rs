@@ -2,7 +2,7 @@
 //!
 //! The arguments are defined with `clap` (see `cli`); `phdose --help` lists the commands.
 //! Exit codes: 0 success, 1 a refusal verdict (`check` and `pack`: the boot checks refuse
-//! dosing), 2 any usage, input, solver or internal error (reported as `{"error": "..."}` on
+//! dosing; `fit`: the fit is refused for its quality), 2 any usage, input, solver or internal error (reported as `{"error": "..."}` on
 //! stdout with `--json`, as an `error: ...` message on stderr otherwise).
 //! The program never prints a panic or a backtrace.
 

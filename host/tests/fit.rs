@@ -1,5 +1,6 @@
 //! `phdose fit`: recovery of the invented example's known composition, the three input forms,
-//! the SVG plot, and refusals (ill-conditioned fits, bad data) with exit code 2.
+//! the SVG plot, quality refusals (ill-conditioned, not converged, residual above the bound)
+//! with exit code 1, and bad data with exit code 2.
 //!
 //! Reference values: host/examples-data/fit-example.csv is synthetic. Its true composition is
 //! the input of its generator (host/examples/fit_example_data.rs) and is stated in the file's
@@ -170,14 +171,26 @@ fn file_flags_and_json_agree() {
 }
 
 #[test]
-fn ill_conditioned_fits_are_refused_with_the_parameter_named() {
-    // Two buffers on data that show one (plus carbonate): the data cannot tell them apart.
+fn ill_conditioned_fits_are_refused_with_exit_1_and_the_parameter_named() {
+    // Two buffers on data that show one (plus carbonate): the data cannot tell them apart. A
+    // quality refusal: exit 1, the reason on stdout (table) or in the JSON document, no values.
     let r = run(&["fit", "--example", "--buffers", "2"], "");
-    assert_eq!(r.code, 2, "{}", r.stdout);
-    assert!(r.stderr.starts_with("error: ill-conditioned fit"), "{}", r.stderr);
-    assert!(r.stderr.contains("buffer a total") || r.stderr.contains("buffer b"), "{}", r.stderr);
-    let msg = json_error(&["fit", "--example", "--json", "--buffers", "2"], "");
+    assert_eq!(r.code, 1, "{}{}", r.stdout, r.stderr);
+    assert!(r.stderr.is_empty(), "{}", r.stderr);
+    assert!(r.stdout.contains("FIT REFUSED: ill-conditioned fit"), "{}", r.stdout);
+    assert!(r.stdout.contains("buffer a total") || r.stdout.contains("buffer b"), "{}", r.stdout);
+    assert!(!r.stdout.contains("strong charge  "), "no values without a result: {}", r.stdout);
+    let refused = |args: &[&str], stdin: &str| -> Value {
+        let r = run(args, stdin);
+        assert_eq!(r.code, 1, "{}{}", r.stdout, r.stderr);
+        serde_json::from_str(&r.stdout).unwrap()
+    };
+    let doc = refused(&["fit", "--example", "--json", "--buffers", "2"], "");
+    assert_eq!((doc["quality"].as_str(), doc["refusal"].as_str()), (Some("refused"), Some("ill_conditioned")));
+    let msg = doc["reason"].as_str().unwrap();
     assert!(msg.starts_with("ill-conditioned fit") && msg.contains("buffer"), "{msg}");
+    assert!(doc["strong_charge_meq_per_l"].is_null() && doc["converged"].is_null(), "{doc}");
+    assert_eq!(doc["points"].as_u64(), Some(49));
 
     // Strong acid titrated only to pH 3.4 (invented rinse-tank check): nothing there shows a
     // carbonate total, so asking for one is refused and named.
@@ -194,11 +207,14 @@ fn ill_conditioned_fits_are_refused_with_the_parameter_named() {
             "carbonate": true, "activity": "ideal"}}"#,
         points.join(", ")
     );
-    let msg = json_error(&["fit", "--json"], &request);
+    let doc = refused(&["fit", "--json"], &request);
+    let msg = doc["reason"].as_str().unwrap();
     assert!(msg.contains("ill-conditioned") && msg.contains("carbonate"), "{msg}");
-    // Without the carbonate the same data fit: −5 meq/L.
+    // Without the carbonate the same data fit: −5 meq/L, accepted.
     let ok = ok_json(&["fit", "--json"], &request.replace(r#""carbonate": true, "#, ""));
     assert!((num(&ok["strong_charge_meq_per_l"], "value") + 5.0).abs() < 0.01, "{ok}");
+    assert_eq!((ok["quality"].as_str(), ok["converged"].as_bool()), (Some("accepted"), Some(true)), "{ok}");
+    assert!(ok["refusal"].is_null() && ok["reason"].is_null(), "{ok}");
 }
 
 #[test]
@@ -301,4 +317,161 @@ fn a_sulfuric_acid_curve_fits_back_to_its_composition() {
     let carbonate = value("carbonate");
     assert!((strong - 4.6).abs() <= 0.02 * 4.6, "strong charge {strong} meq/L");
     assert!((carbonate - 4.3).abs() <= 0.05 * 4.3, "carbonate {carbonate} mmol/L");
+}
+
+/// Writes the curve of the invented make-up water above (NaHCO3 4 mM, Na2CO3 0.3 mM, CaCl2
+/// 1.5 mM, NaCl 3 mM; 50 mL with 0.04 mol/L HCl, 0 to 12 mL) as `curve` writes it, and the
+/// same points as a two-column lab sheet. True strong charge 4.6 meq/L, carbonate 4.3 mmol/L
+/// (the recipe's ions, counted by hand as in the test above).
+fn make_up_water_files(name: &str) -> (std::path::PathBuf, std::path::PathBuf) {
+    let dir = scratch(name);
+    let csv = dir.join("c.csv");
+    ok_table(&[
+        "curve",
+        "NaHCO3=0.004",
+        "Na2CO3=0.0003",
+        "CaCl2=0.0015",
+        "NaCl=0.003",
+        "--sample-ml",
+        "50",
+        "--titrant",
+        "HCl=0.04",
+        "--max-titrant-ml",
+        "12",
+        "--csv",
+        csv.to_str().unwrap(),
+    ]);
+    let text = std::fs::read_to_string(&csv).unwrap();
+    let two: Vec<String> = text.lines().map(|l| l.split(',').take(2).collect::<Vec<_>>().join(",")).collect();
+    let lab = dir.join("lab.csv");
+    std::fs::write(&lab, two.join("\n")).unwrap();
+    (csv, lab)
+}
+
+/// The JSON request of the same lab points (read back from the curve's CSV).
+fn make_up_water_request(name: &str, carbonate: bool, buffers: u8) -> String {
+    let (csv, _) = make_up_water_files(name);
+    let text = std::fs::read_to_string(csv).unwrap();
+    let pairs: Vec<String> = text
+        .lines()
+        .skip(1)
+        .map(|l| {
+            let f: Vec<&str> = l.split(',').collect();
+            format!("[{}, {}]", f[0], f[1])
+        })
+        .collect();
+    format!(
+        r#"{{"sample_volume_l": 0.05, "titrant": {{"dissolved": {{"HCl": 0.04}}}}, "points": [{}],
+            "carbonate": {carbonate}, "buffers": {buffers}}}"#,
+        pairs.join(", ")
+    )
+}
+
+/// A fit whose model misses the data by pH units (strong charge alone on a carbonate water:
+/// 0.960 ± 0.001 meq/L against a true 4.6, RMS 2.34 pH) was printed with exit 0. Now it is
+/// refused for its residual: exit 1, the reason in the table and in the JSON document.
+#[test]
+fn a_fit_that_misses_the_data_is_refused_with_exit_1() {
+    let (_, lab) = make_up_water_files("fit-residual");
+    let lab = lab.to_str().unwrap();
+    let args = ["fit", "--data", lab, "--titrant", "HCl=0.04", "--sample-ml", "50"];
+    let r = run(&args, "");
+    assert_eq!(r.code, 1, "{}{}", r.stdout, r.stderr);
+    assert!(r.stdout.contains("REFUSED") && r.stdout.contains("residual RMS"), "{}", r.stdout);
+    let r = run(&["fit", "--json"], &make_up_water_request("fit-residual-json", false, 0));
+    assert_eq!(r.code, 1, "{}{}", r.stdout, r.stderr);
+    let doc: Value = serde_json::from_str(&r.stdout).unwrap();
+    assert_eq!(doc["quality"], "refused", "{doc}");
+    assert_eq!(doc["refusal"], "residual_above_bound", "{doc}");
+    assert!(doc["reason"].as_str().unwrap().contains("residual RMS"), "{doc}");
+    assert!(num(&doc, "rms_ph") > 1.0, "{doc}");
+    // The bounds it was held to: the RMS bound, the data's pH range (the curve's own first and
+    // last pH: it falls monotonically with acid) and the allowed pKa range 0.3 pH inside it.
+    assert_eq!(num(&doc, "max_rms_ph"), 0.05);
+    assert_eq!(doc["converged"], true, "{doc}");
+    let text = std::fs::read_to_string(lab).unwrap();
+    let ph: Vec<f64> = text.lines().skip(1).map(|l| l.split(',').nth(1).unwrap().parse().unwrap()).collect();
+    let range = |key: &str| (doc[key][0].as_f64().unwrap(), doc[key][1].as_f64().unwrap());
+    assert_eq!(range("data_ph_range"), (*ph.last().unwrap(), ph[0]));
+    let (lo, hi) = range("allowed_pka_range");
+    assert!((lo - (ph.last().unwrap() + 0.3)).abs() < 1e-12 && (hi - (ph[0] - 0.3)).abs() < 1e-12, "{doc}");
+}
+
+/// Carbonate and one buffer on the same data ran into the iteration cap (60) with the buffer's
+/// pKa at 1.2, below the data's pH range (2.45 to 9.05), and was printed with exit 0. Now it is
+/// refused: not converged (checked first), exit 1.
+#[test]
+fn a_fit_stopped_by_the_iteration_cap_is_refused_with_exit_1() {
+    let (_, lab) = make_up_water_files("fit-cap");
+    let lab = lab.to_str().unwrap();
+    let args = ["fit", "--data", lab, "--titrant", "HCl=0.04", "--sample-ml", "50", "--carbonate", "--buffers", "1"];
+    let r = run(&args, "");
+    assert_eq!(r.code, 1, "{}{}", r.stdout, r.stderr);
+    assert!(r.stdout.contains("REFUSED"), "{}", r.stdout);
+    assert!(r.stdout.contains("did not converge") || r.stdout.contains("outside the pH range"), "{}", r.stdout);
+    let r = run(&["fit", "--json"], &make_up_water_request("fit-cap-json", true, 1));
+    assert_eq!(r.code, 1, "{}{}", r.stdout, r.stderr);
+    let doc: Value = serde_json::from_str(&r.stdout).unwrap();
+    assert_eq!(doc["quality"], "refused", "{doc}");
+    let refusal = doc["refusal"].as_str().unwrap();
+    assert!(refusal == "not_converged" || refusal == "pka_outside_data", "{doc}");
+}
+
+/// Three lab points at a titrant volume of 1e308 mL (on a 50 mL sample) were fitted. Now they
+/// are refused as input (exit 2), with the volume and the bound named.
+#[test]
+fn impossible_titrant_volumes_are_refused() {
+    let dir = scratch("fit-huge");
+    let path = dir.join("huge.csv");
+    std::fs::write(&path, "titrant_ml,ph\n0,9.0\n1,8.0\n2,7.0\n1e308,3.0\n1e308,2.9\n1e308,2.8\n").unwrap();
+    let e = table_error(&["fit", "--data", path.to_str().unwrap(), "--titrant", "HCl=0.04", "--sample-ml", "50"]);
+    assert!(e.contains("1e308") && e.contains("sample"), "{e}");
+    let request = r#"{"sample_volume_l": 0.05, "titrant": {"dissolved": {"HCl": 0.04}},
+        "points": [[0, 9.0], [1, 8.0], [2, 7.0], [1e308, 3.0], [1e308, 2.9], [1e308, 2.8]]}"#;
+    let msg = json_error(&["fit", "--json"], request);
+    assert!(msg.contains("1e308") && msg.contains("sample"), "{msg}");
+}
+
+/// Volumes out of order were silently sorted; a lab sheet out of order is more likely a typing
+/// error than a reordering, so it is refused (exit 2) with the line.
+#[test]
+fn volumes_out_of_order_are_refused() {
+    let dir = scratch("fit-order");
+    let path = dir.join("order.csv");
+    std::fs::write(&path, "titrant_ml,ph\n0,9.0\n1,8.0\n3,6.0\n2,7.0\n4,5.0\n5,4.0\n").unwrap();
+    let e = table_error(&["fit", "--data", path.to_str().unwrap(), "--titrant", "HCl=0.04", "--sample-ml", "50"]);
+    assert!(e.contains("line 5") && e.contains("order"), "{e}");
+    let request = r#"{"sample_volume_l": 0.05, "titrant": {"dissolved": {"HCl": 0.04}},
+        "points": [[0, 9.0], [1, 8.0], [3, 6.0], [2, 7.0], [4, 5.0], [5, 4.0]]}"#;
+    let msg = json_error(&["fit", "--json"], request);
+    assert!(msg.contains("points[3]") && msg.contains("order"), "{msg}");
+}
+
+/// `fit --data` reads the CSV `curve` writes (columns titrant_ml, ph and
+/// buffer_capacity_mol_per_l_per_ph, selected by header name): it used to be refused for its
+/// third column. The recipe's strong charge within 2 % and carbonate within 5 %.
+#[test]
+fn fit_reads_the_csv_curve_writes() {
+    let (csv, _) = make_up_water_files("fit-curve-csv");
+    let out = ok_table(&[
+        "fit",
+        "--data",
+        csv.to_str().unwrap(),
+        "--titrant",
+        "HCl=0.04",
+        "--sample-ml",
+        "50",
+        "--carbonate",
+    ]);
+    let value = |label: &str| -> f64 {
+        let line = out.lines().find(|l| l.starts_with(label)).unwrap_or_else(|| panic!("no {label} line in {out}"));
+        line[label.len()..].split_whitespace().next().unwrap().parse().unwrap()
+    };
+    let strong = value("strong charge");
+    let carbonate = value("carbonate");
+    assert!((strong - 4.6).abs() <= 0.02 * 4.6, "strong charge {strong} meq/L");
+    assert!((carbonate - 4.3).abs() <= 0.05 * 4.3, "carbonate {carbonate} mmol/L");
+    let quality = out.lines().find(|l| l.starts_with("quality")).unwrap_or_else(|| panic!("no quality line: {out}"));
+    assert!(quality.contains("accepted"), "{quality}");
+    assert!(out.contains("converged"), "{out}");
 }

@@ -5,6 +5,20 @@
 //! Unknowns (up to [`MAX_PARAMETERS`]): the net strong-ion charge (always), the carbonate total
 //! (optional) and up to two generic monoprotic weak buffers (total and pKa each). Totals are
 //! fitted as log10 (so they stay positive), pKa within [`PKA_RANGE`]. Residuals are in pH.
+//!
+//! Quality policy: [`fit`] returns a composition only when the lab points are physically
+//! possible (see [`PointProblem`]) and the fit passes every check below; otherwise a typed
+//! [`FitError`] says why. [`fit_assessed`] runs the same fit and returns a refused result with
+//! its verdict ([`FitQuality`]), for a report that shows the numbers of a refused fit. Checks, in
+//! the order they are reported:
+//!
+//! 1. identifiable: every fitted parameter has a standard error within
+//!    [`MAX_STANDARD_ERROR_LOG`] ([`FitError::IllConditioned`], returned by both functions);
+//! 2. converged: the iterations stopped because no step improved the residual any more, not at
+//!    [`MAX_FIT_ITERATIONS`] ([`FitError::NotConverged`]);
+//! 3. every fitted pKa lies at least [`PKA_INSIDE_DATA_PH`] inside the pH range the data
+//!    cover: the data bracket it ([`FitError::PkaOutsideData`]);
+//! 4. the RMS residual is at most [`MAX_RMS_PH`] ([`FitError::ResidualAboveBound`]).
 
 use crate::chem::system::{AcidBaseSystem, LogK};
 use crate::chem::{Activity, CompositionError, Solution, catalogue};
@@ -23,6 +37,45 @@ pub const LOG_TOTAL_RANGE: (f64, f64) = (-7.0, 0.0);
 /// Largest acceptable standard error of a fitted log10 total (a factor of 10^0.5 ≈ 3) or pKa
 /// (0.5 pH); beyond it the data do not determine the parameter and the fit is refused.
 pub const MAX_STANDARD_ERROR_LOG: f64 = 0.5;
+
+/// Largest accepted RMS residual of a fit, pH. Common practice, no source: a lab pH meter's
+/// noise is about 0.01–0.02 pH (from memory), and this crate's own noiseless curves fitted back
+/// to the effective model leave 0.005–0.03 pH (`host/tests/fit_roundtrip.rs`: the sample's
+/// ionic strength is not that of the fitted monovalent strong ions, and phosphate's charges
+/// and first proton are not a generic buffer's; the most, 0.029, for a phosphate water titrated
+/// with acid). A residual above about three times the meter's noise means the model does not
+/// describe the curve (a missing carbonate or buffer, a wrong titrant or sample volume), and its
+/// numbers are not the sample's.
+pub const MAX_RMS_PH: f64 = 0.05;
+
+/// How far inside the pH range the data cover a fitted pKa must lie, pH: the data must reach
+/// at least 0.3 pH beyond it on both sides, so they show the middle third of that buffer's
+/// step (from 1/3 to 2/3 protonated: 10^0.3 = 2, calc). Common practice, no source; the
+/// reasoning: a titration that does not bracket a buffer's half-neutralisation point (pH = pKa)
+/// sees only the tail of its buffering, and the fit then trades the buffer's total against
+/// the strong charge along a nearly flat valley of the residual. This crate's own curves show
+/// it (`host/tests/fit_roundtrip.rs`, Davies): a phosphate rinse (pKa₂ ≈ 7.1) titrated with NaOH
+/// from pH 8.31 fitted its strong charge 92 % low (standard error 2.5 % of the truth) with the
+/// pKa at 8.21, outside the data; a carbonate and phosphate rinse titrated with NaOH from pH
+/// 8.51 fitted it 24 % low (standard error 0.2 %) with the pKa at 8.54, 0.03 inside. A phosphate
+/// water that starts below the pKa (calc: `phdose curve Na2HPO4=0.00054 NaH2PO4=0.00126
+/// NaCl=0.0005 --sample-ml 50 --titrant NaOH=0.02 --max-titrant-ml 5.25`, pH 6.75 to 10.80,
+/// then `phdose fit --buffers 1`) puts it at 7.13, 0.38 inside, and recovers its strong charge
+/// within 1.1 % and its phosphate within 0.1 %.
+pub const PKA_INSIDE_DATA_PH: f64 = 0.3;
+
+/// Largest titrant volume of a lab point, as a multiple of the sample volume (dimensionless).
+/// A lab titration adds a burette's worth (up to some 50 mL) to a sample of 25–100 mL
+/// (common practice, no source); ten sample volumes dilute the sample elevenfold and leave
+/// generous room, while a volume beyond it is a typing or unit error (mL for µL, a column mixed
+/// up), not a titration.
+pub const MAX_TITRANT_PER_SAMPLE: f64 = 10.0;
+
+/// Range of an accepted measured pH, (lowest, highest). The span of a lab pH meter's usual
+/// calibration buffers and of glass electrodes' specified range (common practice, no source);
+/// outside it a reading is a typing error or a meter fault, and the fit's activity model
+/// (Davies, valid to an ionic strength of about 0.5 mol/L) does not hold there anyway.
+pub const MEASURED_PH_RANGE: (f64, f64) = (0.0, 14.0);
 
 /// The generic buffer systems a fit may use (monoprotic HA / A⁻, pKa set by the fit).
 pub const BUFFER_KEYS: [&str; 2] = ["fitted-buffer-a", "fitted-buffer-b"];
@@ -156,8 +209,73 @@ pub struct FitResult<R: Real> {
     pub rms_ph: R,
     /// Points used.
     pub points: u32,
-    /// Levenberg–Marquardt iterations used.
+    /// Levenberg–Marquardt iterations used (1 to [`MAX_FIT_ITERATIONS`]).
     pub iterations: u32,
+    /// `true` when the iterations stopped because no step improved the residual any more
+    /// (relative gain below 1e-12, or no damped step lowered it); `false` when they stopped at
+    /// [`MAX_FIT_ITERATIONS`] while still improving.
+    pub converged: bool,
+    /// Lowest measured pH of the data.
+    pub data_min_ph: R,
+    /// Highest measured pH of the data.
+    pub data_max_ph: R,
+    /// The quality verdict (see the module docs): [`FitQuality::Accepted`] for every result
+    /// [`fit`] returns.
+    pub quality: FitQuality,
+}
+
+/// The quality verdict of a fit that ran to the end.
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub enum FitQuality {
+    /// Every check passed: the composition describes the data.
+    Accepted,
+    /// A check failed: the first failing one, as the error [`fit`] returns
+    /// ([`FitError::NotConverged`], [`FitError::PkaOutsideData`] or
+    /// [`FitError::ResidualAboveBound`]). The numbers of the result are not the sample's.
+    Refused(FitError),
+}
+
+impl FitQuality {
+    /// `true` for [`FitQuality::Accepted`].
+    pub fn is_accepted(&self) -> bool {
+        matches!(self, Self::Accepted)
+    }
+}
+
+/// What is wrong with a lab point (see [`FitError::InvalidPoint`]).
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub enum PointProblem {
+    /// The titrant volume or the pH is not a finite number.
+    NotFinite,
+    /// The titrant volume is below zero.
+    NegativeVolume,
+    /// The titrant volume is below the previous point's: the points must be in titrant order
+    /// (non-decreasing volumes; equal volumes are repeated readings).
+    VolumeDecreases,
+    /// The titrant volume is above [`MAX_TITRANT_PER_SAMPLE`] times the sample volume.
+    VolumeAboveBound,
+    /// The pH is outside [`MEASURED_PH_RANGE`].
+    PhOutsideRange,
+}
+
+impl core::fmt::Display for PointProblem {
+    fn fmt(&self, f: &mut core::fmt::Formatter<'_>) -> core::fmt::Result {
+        match self {
+            Self::NotFinite => f.write_str("not a finite number"),
+            Self::NegativeVolume => f.write_str("negative titrant volume"),
+            Self::VolumeDecreases => {
+                f.write_str("titrant volume below the previous point's (the points must be in titrant order)")
+            }
+            Self::VolumeAboveBound => {
+                write!(f, "titrant volume above {MAX_TITRANT_PER_SAMPLE} times the sample volume")
+            }
+            Self::PhOutsideRange => {
+                write!(f, "pH outside {} to {}", MEASURED_PH_RANGE.0, MEASURED_PH_RANGE.1)
+            }
+        }
+    }
 }
 
 /// Why a fit was refused.
@@ -165,8 +283,16 @@ pub struct FitResult<R: Real> {
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 #[non_exhaustive]
 pub enum FitError {
-    /// Fewer points than parameters + 2, or a point is not finite, or the setup is invalid.
+    /// Fewer points than parameters + 2, more than `u32::MAX` points, a sample volume that is not
+    /// positive and finite, or a starting value that is not finite.
     InvalidData,
+    /// A lab point is not physically possible.
+    InvalidPoint {
+        /// Index of the point in the data (0-based).
+        index: u32,
+        /// What is wrong with it.
+        problem: PointProblem,
+    },
     /// The data do not determine this parameter (singular or near-singular normal matrix, or a
     /// standard error above [`MAX_STANDARD_ERROR_LOG`]).
     IllConditioned {
@@ -176,6 +302,47 @@ pub enum FitError {
     /// The model could not be evaluated at some point (the composition could not be built, or a
     /// mix or solve failed).
     ModelFailed,
+    /// The iterations stopped at [`MAX_FIT_ITERATIONS`] while the residual was still falling:
+    /// the result is not a minimum.
+    NotConverged {
+        /// Iterations used (= [`MAX_FIT_ITERATIONS`]).
+        iterations: u32,
+    },
+    /// A fitted pKa does not lie at least [`PKA_INSIDE_DATA_PH`] inside the pH range the data
+    /// cover: the data do not show the middle of that buffer's step, only its tail.
+    PkaOutsideData {
+        /// Which parameter: "buffer a pKa" or "buffer b pKa".
+        parameter: &'static str,
+        /// The fitted pKa.
+        pka: f64,
+        /// Lowest measured pH of the data.
+        data_min_ph: f64,
+        /// Highest measured pH of the data.
+        data_max_ph: f64,
+    },
+    /// The RMS residual is above [`MAX_RMS_PH`]: the model does not describe the data.
+    ResidualAboveBound {
+        /// The fit's RMS residual, pH.
+        rms_ph: f64,
+        /// The bound, pH ([`MAX_RMS_PH`]).
+        bound_ph: f64,
+    },
+}
+
+impl FitError {
+    /// `true` for a refusal of the fit's quality ([`FitError::IllConditioned`],
+    /// [`FitError::NotConverged`], [`FitError::PkaOutsideData`],
+    /// [`FitError::ResidualAboveBound`]): the data were valid, the fit ran, and its result does
+    /// not describe the sample. `false` for invalid input or a model failure.
+    pub fn is_quality_refusal(&self) -> bool {
+        matches!(
+            self,
+            Self::IllConditioned { .. }
+                | Self::NotConverged { .. }
+                | Self::PkaOutsideData { .. }
+                | Self::ResidualAboveBound { .. }
+        )
+    }
 }
 
 impl core::fmt::Display for FitError {
@@ -187,7 +354,24 @@ impl core::fmt::Display for FitError {
             Self::IllConditioned { parameter } => {
                 write!(f, "ill-conditioned fit: the titration data do not determine the {parameter}")
             }
+            Self::InvalidPoint { index, problem } => {
+                write!(f, "lab point {} (counting from 1): {problem}", u64::from(*index) + 1)
+            }
             Self::ModelFailed => f.write_str("the model could not be solved at a data point"),
+            Self::NotConverged { iterations } => write!(
+                f,
+                "the fit did not converge: it stopped at the cap of {iterations} iterations while the residual was still falling"
+            ),
+            Self::PkaOutsideData { parameter, pka, data_min_ph, data_max_ph } => write!(
+                f,
+                "the fitted {parameter} {pka:.2} is not {PKA_INSIDE_DATA_PH} pH inside the pH range the data cover \
+                 ({data_min_ph:.2} to {data_max_ph:.2}): the data do not bracket it, so they show only the tail of \
+                 that buffer's step"
+            ),
+            Self::ResidualAboveBound { rms_ph, bound_ph } => write!(
+                f,
+                "residual RMS {rms_ph:.3} pH is above the {bound_ph} pH bound: the model does not describe the data"
+            ),
         }
     }
 }
@@ -258,12 +442,102 @@ fn residual_sum<R: Real, const M: usize>(
     Ok(rss)
 }
 
-/// Fits `spec`'s unknowns to `data` = (titrant added in L, measured pH), ascending in titrant,
-/// for a sample titrated with `titrant`, starting from `start`.
+/// Fits `spec`'s unknowns to `data` = (titrant added in L, measured pH), in titrant order, for a
+/// sample titrated with `titrant`, starting from `start`, and returns the composition only when
+/// the fit passes the quality policy (module docs).
 ///
-/// Bounded: at most [`MAX_FIT_ITERATIONS`] iterations, each (k + 1) model evaluations of every
-/// point for the Jacobian plus at most 12 damped trials, k ≤ [`MAX_PARAMETERS`].
+/// Bounded: one pass over the data to check it, at most [`MAX_FIT_ITERATIONS`] iterations, each
+/// (k + 1) model evaluations of every point for the Jacobian plus at most 12 damped trials,
+/// k ≤ [`MAX_PARAMETERS`], and one more Jacobian for the standard errors.
+///
+/// # Errors
+/// [`FitError::InvalidData`] / [`FitError::InvalidPoint`] for data or a setup that cannot be
+/// fitted (volumes in L: each in 0 to [`MAX_TITRANT_PER_SAMPLE`] × `spec.sample_volume_l`,
+/// non-decreasing; pH in [`MEASURED_PH_RANGE`]), [`FitError::ModelFailed`] when the model
+/// cannot be solved, and a quality refusal ([`FitError::is_quality_refusal`]):
+/// [`FitError::IllConditioned`], [`FitError::NotConverged`], [`FitError::PkaOutsideData`] or
+/// [`FitError::ResidualAboveBound`].
 pub fn fit<R: Real, const M: usize>(
+    spec: &FitSpec<R>,
+    titrant: &Solution<R, M>,
+    data: &[(R, R)],
+    start: &Effective<R>,
+) -> Result<FitResult<R>, FitError> {
+    let result = fit_assessed(spec, titrant, data, start)?;
+    match result.quality {
+        FitQuality::Accepted => Ok(result),
+        FitQuality::Refused(e) => Err(e),
+    }
+}
+
+/// Checks lab points: each finite, volume in 0 to [`MAX_TITRANT_PER_SAMPLE`] × `sample_volume_l`
+/// and not below its predecessor's, pH in [`MEASURED_PH_RANGE`]. Returns the data's lowest and
+/// highest pH. One pass over the data.
+fn check_points<R: Real>(data: &[(R, R)], sample_volume_l: R) -> Result<(R, R), FitError> {
+    let max_l = sample_volume_l * R::from_f64(MAX_TITRANT_PER_SAMPLE);
+    let (ph_lo, ph_hi) = (R::from_f64(MEASURED_PH_RANGE.0), R::from_f64(MEASURED_PH_RANGE.1));
+    let mut previous_l = R::ZERO;
+    let mut range = (ph_hi, ph_lo);
+    for (i, &(v, ph)) in data.iter().enumerate() {
+        let problem = if !v.is_finite() || !ph.is_finite() {
+            Some(PointProblem::NotFinite)
+        } else if v < R::ZERO {
+            Some(PointProblem::NegativeVolume)
+        } else if v > max_l {
+            Some(PointProblem::VolumeAboveBound)
+        } else if v < previous_l {
+            Some(PointProblem::VolumeDecreases)
+        } else if ph < ph_lo || ph > ph_hi {
+            Some(PointProblem::PhOutsideRange)
+        } else {
+            None
+        };
+        if let Some(problem) = problem {
+            let index = u32::try_from(i).map_err(|_| FitError::InvalidData)?;
+            return Err(FitError::InvalidPoint { index, problem });
+        }
+        previous_l = v;
+        range = (range.0.min(ph), range.1.max(ph));
+    }
+    Ok(range)
+}
+
+/// The quality verdict of a fit that ran to the end (checks 2–4 of the module docs, in that
+/// order): `pkas` are the fitted buffers' pKa, `None` for a buffer not fitted.
+fn assess<R: Real>(converged: bool, iterations: u32, rms_ph: R, pkas: [Option<R>; 2], data_ph: (R, R)) -> FitQuality {
+    if !converged {
+        return FitQuality::Refused(FitError::NotConverged { iterations });
+    }
+    let inside = R::from_f64(PKA_INSIDE_DATA_PH);
+    let (lo, hi) = data_ph;
+    // Two iterations.
+    for (pka, parameter) in pkas.into_iter().zip(["buffer a pKa", "buffer b pKa"]) {
+        if let Some(pka) = pka
+            && !(pka >= lo + inside && pka <= hi - inside)
+        {
+            return FitQuality::Refused(FitError::PkaOutsideData {
+                parameter,
+                pka: pka.to_f64(),
+                data_min_ph: lo.to_f64(),
+                data_max_ph: hi.to_f64(),
+            });
+        }
+    }
+    // A NaN residual is refused too.
+    if !rms_ph.is_finite() || rms_ph > R::from_f64(MAX_RMS_PH) {
+        return FitQuality::Refused(FitError::ResidualAboveBound { rms_ph: rms_ph.to_f64(), bound_ph: MAX_RMS_PH });
+    }
+    FitQuality::Accepted
+}
+
+/// Runs the fit of [`fit`] and returns its result with its quality verdict, also when the
+/// verdict refuses it (`quality` is then [`FitQuality::Refused`]): for a report that shows the
+/// numbers of a refused fit. Use [`fit`] to act on a composition. Same bounds as [`fit`].
+///
+/// # Errors
+/// As [`fit`], except that [`FitError::NotConverged`], [`FitError::PkaOutsideData`] and
+/// [`FitError::ResidualAboveBound`] come in `quality` instead.
+pub fn fit_assessed<R: Real, const M: usize>(
     spec: &FitSpec<R>,
     titrant: &Solution<R, M>,
     data: &[(R, R)],
@@ -275,13 +549,10 @@ pub fn fit<R: Real, const M: usize>(
     let [(start_a, start_pka_a), (start_b, start_pka_b)] = start.buffers;
     let start_values =
         [start.strong_charge_eq_per_l, start.carbonate_mol_per_l, start_a, start_pka_a, start_b, start_pka_b];
-    if data.len() < k + 2
-        || !(vol.is_finite() && vol > 0.0)
-        || data.iter().any(|(v, p)| !v.is_finite() || !p.is_finite())
-        || start_values.iter().any(|v| !v.is_finite())
-    {
+    if data.len() < k + 2 || !(vol.is_finite() && vol > 0.0) || start_values.iter().any(|v| !v.is_finite()) {
         return Err(FitError::InvalidData);
     }
+    let data_ph = check_points(data, spec.sample_volume_l)?;
     let points = u32::try_from(data.len()).map_err(|_| FitError::InvalidData)?;
     let log_or = |c: R, default: f64| if c > R::ZERO { c.log10() } else { R::from_f64(default) };
     let mut p: [R; MAX_PARAMETERS] = [
@@ -297,6 +568,7 @@ pub fn fit<R: Real, const M: usize>(
     let mut lambda = R::from_f64(1e-3);
     let mut rss = residual_sum(&p, layout, spec, titrant, data)?;
     let mut iterations = 0;
+    let mut converged = false;
     for it in 1..=MAX_FIT_ITERATIONS {
         iterations = it;
         // Normal equations from a forward-difference Jacobian, accumulated point by point.
@@ -336,6 +608,7 @@ pub fn fit<R: Real, const M: usize>(
             lambda *= R::from_f64(10.0);
         }
         if !improved {
+            converged = true;
             break;
         }
     }
@@ -371,12 +644,20 @@ pub fn fit<R: Real, const M: usize>(
         carbonate_mol_per_l: eff.carbonate_mol_per_l * ln10 * se_c,
         buffers: [(total_a * ln10 * se_a, se_pka_a), (total_b * ln10 * se_b, se_pka_b)],
     };
+    let rms_ph = (rss / R::from_f64(f64::from(points))).sqrt();
+    let [_, _, _, fitted_a, _, fitted_b] = layout.active;
+    let [(_, pka_a), (_, pka_b)] = eff.buffers;
+    let pkas = [fitted_a.then_some(pka_a), fitted_b.then_some(pka_b)];
     Ok(FitResult {
         effective: eff,
         standard_errors,
-        rms_ph: (rss / R::from_f64(f64::from(points))).sqrt(),
+        rms_ph,
         points,
         iterations,
+        converged,
+        data_min_ph: data_ph.0,
+        data_max_ph: data_ph.1,
+        quality: assess(converged, iterations, rms_ph, pkas, data_ph),
     })
 }
 
@@ -577,7 +858,7 @@ mod tests {
         // The residual is the noise level, and the standard errors are non-zero and modest.
         assert!(r.rms_ph > 0.005 && r.rms_ph < 0.02, "rms {}", r.rms_ph);
         assert!(r.standard_errors.carbonate_mol_per_l > 0.0 && r.standard_errors.carbonate_mol_per_l < 5e-4);
-        assert!(r.iterations <= MAX_FIT_ITERATIONS);
+        assert!(r.iterations < MAX_FIT_ITERATIONS && r.converged && r.quality.is_accepted(), "{r:?}");
     }
 
     fn t20() -> Celsius<f64> {
@@ -670,6 +951,173 @@ mod tests {
         // Not positive definite: refused.
         a[2][2] = 1.0;
         assert_eq!(solve_spd(&a, &b, layout), None);
+    }
+
+    /// An invented bicarbonate make-up water with hardness and salt (NaHCO3 4 mM, Na2CO3 0.3 mM,
+    /// CaCl2 1.5 mM, NaCl 3 mM; 50 mL, 25 °C, Davies) titrated with 0.04 mol/L HCl, 0 to 12 mL
+    /// (64 volumes, pH 9.05 to 2.45): the model's own noiseless curve. True strong charge
+    /// 4.6 meq/L (Na⁺ 7.6 + Ca²⁺ 3.0 − Cl⁻ 6.0, from the recipe), carbonate 4.3 mmol/L.
+    fn make_up_water_titrated_with_acid() -> (FitSpec<f64>, Solution<f64, 1>, std::vec::Vec<(f64, f64)>) {
+        let t = Celsius::new(25.0).unwrap();
+        let mut sample: Solution<f64, 4> = Solution::new(t, Activity::Davies);
+        for (f, c) in [("NaHCO3", 0.004), ("Na2CO3", 0.0003), ("CaCl2", 0.0015), ("NaCl", 0.003)] {
+            sample.add_formula(f, c).unwrap();
+        }
+        let mut acid: Solution<f64, 1> = Solution::new(t, Activity::Davies);
+        acid.add_formula("HCl", 0.04).unwrap();
+        let data = (0..64)
+            .map(|i| {
+                let v = 0.012 * f64::from(i) / 63.0;
+                (v, sample.mix(0.05, &acid, v).unwrap().solve().unwrap().ph)
+            })
+            .collect();
+        let spec =
+            FitSpec { carbonate: false, buffers: 0, sample_volume_l: 0.05, temperature: t, activity: Activity::Davies };
+        (spec, acid, data)
+    }
+
+    /// The start `phdose fit` guesses for these data: strong charge from the pH 7 crossing,
+    /// carbonate 1 mmol/L, one buffer 0.5 mmol/L mid-way through the data's pH range.
+    fn cli_start() -> Effective<f64> {
+        Effective { strong_charge_eq_per_l: 1.02e-3, carbonate_mol_per_l: 1e-3, buffers: [(5e-4, 5.75), (0.0, 7.0)] }
+    }
+
+    #[test]
+    fn a_fit_that_does_not_describe_the_data_is_refused() {
+        // Strong charge alone on a carbonate water: the best such model misses the curve by
+        // pH units (it used to be returned as 0.96 ± 0.001 meq/L against a true 4.6).
+        let (spec, acid, data) = make_up_water_titrated_with_acid();
+        let r = fit(&spec, &acid, &data, &cli_start());
+        let Err(FitError::ResidualAboveBound { rms_ph, bound_ph }) = r else { panic!("{r:?}") };
+        assert!(rms_ph > 1.0 && bound_ph == MAX_RMS_PH, "{r:?}");
+        assert!(r.is_err_and(|e| e.is_quality_refusal()));
+        // `fit_assessed` keeps the numbers of the refused fit, with the same verdict.
+        let a = fit_assessed(&spec, &acid, &data, &cli_start()).unwrap();
+        assert_eq!(a.quality, FitQuality::Refused(FitError::ResidualAboveBound { rms_ph: a.rms_ph, bound_ph }));
+        assert!(a.converged && a.rms_ph == rms_ph, "{a:?}");
+        assert_eq!(
+            (a.data_min_ph, a.data_max_ph),
+            data.iter().fold((14.0, 0.0), |(lo, hi), p| (p.1.min(lo), p.1.max(hi)))
+        );
+    }
+
+    #[test]
+    fn a_fit_stopped_by_the_iteration_cap_is_refused() {
+        // Carbonate and one buffer on the same data: the spare buffer drifts below the data's
+        // pH range (pKa 2.3 against data from pH 2.45) and the fit runs into the iteration cap
+        // (it used to be returned).
+        let (spec, acid, data) = make_up_water_titrated_with_acid();
+        let spec = FitSpec { carbonate: true, buffers: 1, ..spec };
+        let r = fit(&spec, &acid, &data, &cli_start());
+        assert_eq!(r.map(|r| r.points), Err(FitError::NotConverged { iterations: MAX_FIT_ITERATIONS }));
+        let a = fit_assessed(&spec, &acid, &data, &cli_start()).unwrap();
+        assert!(!a.converged && a.iterations == MAX_FIT_ITERATIONS, "{a:?}");
+        // The same data with carbonate alone fit: the recipe's 4.6 meq/L and 4.3 mmol/L.
+        let r = fit(&FitSpec { buffers: 0, ..spec }, &acid, &data, &cli_start()).unwrap();
+        assert!(r.converged && r.iterations < MAX_FIT_ITERATIONS && r.quality.is_accepted(), "{r:?}");
+        assert!((r.effective.strong_charge_eq_per_l / 4.6e-3 - 1.0).abs() < 0.02, "{r:?}");
+        assert!((r.effective.carbonate_mol_per_l / 4.3e-3 - 1.0).abs() < 0.05, "{r:?}");
+    }
+
+    #[test]
+    fn impossible_or_disordered_points_are_refused() {
+        let (spec, acid, data) = make_up_water_titrated_with_acid();
+        let spec = FitSpec { carbonate: true, ..spec };
+        let start = cli_start();
+        assert!(fit(&spec, &acid, &data, &start).is_ok());
+        let with = |i: usize, point: (f64, f64)| {
+            let mut d = data.clone();
+            d[i] = point;
+            fit(&spec, &acid, &d, &start).map(|r| r.points)
+        };
+        let refused = |index: u32, problem: PointProblem| Err(FitError::InvalidPoint { index, problem });
+        // 1e308 mL of titrant (1e305 L) on a 50 mL sample, at the end and in the middle.
+        assert_eq!(with(63, (1e305, 2.4)), refused(63, PointProblem::VolumeAboveBound));
+        assert_eq!(with(30, (1e305, data[30].1)), refused(30, PointProblem::VolumeAboveBound));
+        // The bound is MAX_TITRANT_PER_SAMPLE sample volumes: 0.5 L passes the check (the model
+        // then misses it and the fit is refused for its residual, not for the point), just
+        // above is refused.
+        assert!(with(63, (0.5, 2.4)).is_err_and(|e| e.is_quality_refusal()));
+        assert_eq!(with(63, (0.5 * (1.0 + 1e-12), 2.4)), refused(63, PointProblem::VolumeAboveBound));
+        // A volume below its predecessor (two points swapped); equal volumes are allowed.
+        let mut swapped = data.clone();
+        swapped.swap(10, 11);
+        assert_eq!(fit(&spec, &acid, &swapped, &start).map(|r| r.points), refused(11, PointProblem::VolumeDecreases));
+        let mut repeated = data.clone();
+        repeated[11].0 = repeated[10].0;
+        assert!(fit(&spec, &acid, &repeated, &start).is_ok());
+        // Negative volume, pH beyond the measurable range, non-finite values.
+        assert_eq!(with(0, (-1e-4, data[0].1)), refused(0, PointProblem::NegativeVolume));
+        assert_eq!(with(5, (data[5].0, 15.5)), refused(5, PointProblem::PhOutsideRange));
+        assert_eq!(with(5, (data[5].0, -0.5)), refused(5, PointProblem::PhOutsideRange));
+        assert_eq!(with(7, (f64::NAN, 7.0)), refused(7, PointProblem::NotFinite));
+        assert_eq!(with(7, (data[7].0, f64::INFINITY)), refused(7, PointProblem::NotFinite));
+        assert!(!FitError::InvalidPoint { index: 0, problem: PointProblem::NotFinite }.is_quality_refusal());
+    }
+
+    #[test]
+    fn the_policy_holds_in_f32() {
+        // The make-up water's points in f32: carbonate fitted is accepted with the recipe's
+        // numbers (strong charge ±2 %, carbonate ±5 %), strong charge alone is refused for its
+        // residual, a 1e305 L point for its volume.
+        let (spec, _, data) = make_up_water_titrated_with_acid();
+        let t = Celsius::new(25.0_f32).unwrap();
+        let spec =
+            FitSpec { carbonate: true, buffers: 0, sample_volume_l: 0.05_f32, temperature: t, activity: spec.activity };
+        let mut acid: Solution<f32, 1> = Solution::new(t, Activity::Davies);
+        acid.add_formula("HCl", 0.04).unwrap();
+        let data: std::vec::Vec<(f32, f32)> = data.iter().map(|&(v, ph)| (v as f32, ph as f32)).collect();
+        let start = Effective {
+            strong_charge_eq_per_l: 1.02e-3_f32,
+            carbonate_mol_per_l: 1e-3,
+            buffers: [(0.0, 7.0), (0.0, 7.0)],
+        };
+        let r = fit(&spec, &acid, &data, &start).unwrap();
+        assert!(r.converged && r.quality.is_accepted() && r.rms_ph < 0.05, "{r:?}");
+        assert!((r.effective.strong_charge_eq_per_l / 4.6e-3 - 1.0).abs() < 0.02, "{r:?}");
+        assert!((r.effective.carbonate_mol_per_l / 4.3e-3 - 1.0).abs() < 0.05, "{r:?}");
+        let r = fit(&FitSpec { carbonate: false, ..spec }, &acid, &data, &start);
+        assert!(matches!(r, Err(FitError::ResidualAboveBound { .. })), "{r:?}");
+        let mut huge = data.clone();
+        huge[63].0 = 1e30;
+        let r = fit(&spec, &acid, &huge, &start).map(|r| r.points);
+        assert_eq!(r, Err(FitError::InvalidPoint { index: 63, problem: PointProblem::VolumeAboveBound }));
+    }
+
+    #[test]
+    fn the_quality_checks_come_in_their_documented_order_with_their_bounds() {
+        let range = (4.0, 9.0);
+        let ok = 0.01;
+        assert_eq!(assess(true, 5, ok, [Some(7.0), None], range), FitQuality::Accepted);
+        // A pKa PKA_INSIDE_DATA_PH inside either end passes; closer to an end or outside,
+        // refused with the numbers.
+        let edge = PKA_INSIDE_DATA_PH;
+        assert!(assess(true, 5, ok, [Some(4.0 + edge), Some(9.0 - edge)], range).is_accepted());
+        assert!(!assess(true, 5, ok, [Some(4.0 + 0.9 * edge), None], range).is_accepted());
+        assert!(!assess(true, 5, ok, [None, Some(9.0 - 0.9 * edge)], range).is_accepted());
+        let outside =
+            FitError::PkaOutsideData { parameter: "buffer b pKa", pka: 9.6, data_min_ph: 4.0, data_max_ph: 9.0 };
+        assert_eq!(assess(true, 5, ok, [Some(7.0), Some(9.6)], range), FitQuality::Refused(outside));
+        assert!(!assess(true, 5, ok, [Some(3.4), None], range).is_accepted());
+        assert!(!assess(true, 5, ok, [Some(f64::NAN), None], range).is_accepted());
+        // The residual bound, inclusive; a NaN residual is refused.
+        assert!(assess(true, 5, MAX_RMS_PH, [None, None], range).is_accepted());
+        let above = FitError::ResidualAboveBound { rms_ph: 0.051, bound_ph: MAX_RMS_PH };
+        assert_eq!(assess(true, 5, 0.051, [None, None], range), FitQuality::Refused(above));
+        assert!(!assess(true, 5, f64::NAN, [None, None], range).is_accepted());
+        // Order: not converged before the pKa, the pKa before the residual.
+        let cap = FitError::NotConverged { iterations: MAX_FIT_ITERATIONS };
+        assert_eq!(assess(false, MAX_FIT_ITERATIONS, 1.0, [Some(1.0), None], range), FitQuality::Refused(cap));
+        assert!(matches!(
+            assess(true, 5, 1.0, [Some(1.0), None], range),
+            FitQuality::Refused(FitError::PkaOutsideData { .. })
+        ));
+        // Every quality refusal says so; the messages carry the numbers.
+        for e in [cap, outside, above, FitError::IllConditioned { parameter: "carbonate" }] {
+            assert!(e.is_quality_refusal(), "{e:?}");
+        }
+        assert!(std::format!("{outside}").contains("9.60") && std::format!("{outside}").contains("4.00 to 9.00"));
+        assert!(std::format!("{above}").contains("0.051") && std::format!("{cap}").contains("60"));
     }
 
     #[test]

@@ -35,7 +35,8 @@ pub use error::CliError;
 /// Exit code of every failure (usage, input, solver or internal error).
 pub const FAILURE_CODE: u8 = 2;
 
-/// Exit code of a refusal verdict: the boot checks of `check` and `pack` refuse dosing.
+/// Exit code of a refusal verdict: the boot checks of `check` and `pack` refuse dosing, or
+/// `fit` refuses a fit for its quality.
 pub const REFUSED_CODE: u8 = 1;
 
 /// What a command with a go/no-go verdict prints and its exit code (0 or [`REFUSED_CODE`]).
@@ -63,7 +64,9 @@ Exit codes:
      checks: they are results (\"reachable\": false, \"verdicts\"), not errors. For `check`:
      dosing allowed; for `pack`: the blob was written.
   1  `check` and `pack`: the boot checks refuse dosing with the skid (the report says why).
-  2  any usage, input, solver or internal error, and a refused (ill-conditioned) fit:
+     `fit`: the fit is refused for its quality (ill-conditioned, not converged, a pKa outside
+     the data's pH range, or a residual above the bound; the report says why).
+  2  any usage, input, solver or internal error:
      {\"error\": \"...\"} on stdout with --json, a message on stderr otherwise.
 Defaults: 25 °C, Davies activities. Amounts are mol/L.
 
@@ -219,7 +222,7 @@ pub fn run(argv: &[OsString], stdin: &mut dyn Read) -> Outcome {
         Command::Substances(a) => substances::run(a).map(Reply::from),
         Command::Plan(a) => plan::run(a, stdin).map(Reply::from),
         Command::Curve(a) => curve::run(a, stdin).map(Reply::from),
-        Command::Fit(a) => fit::run(a, stdin).map(Reply::from),
+        Command::Fit(a) => fit::run(a, stdin),
         Command::Pack(a) => pack::run(a),
         Command::Check(a) => check::run(a),
         Command::Simulate(a) => simulate::run(a),

@@ -129,6 +129,7 @@ fn titrations<R: Real>() -> Option<()> {
         buffers: [(r::<R>(1e-4), r::<R>(8.0)), (r::<R>(0.0), r::<R>(7.0))],
     };
     sink(fit::fit(&spec, &acid, &lab, &start).ok()?.rms_ph);
+    sink(fit::fit_assessed(&spec, &acid, &lab, &start).ok()?.rms_ph);
     Some(())
 }
 

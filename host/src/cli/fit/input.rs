@@ -1,5 +1,6 @@
 //! What `fit` is asked: lab points, titrant, sample volume and which unknowns to fit.
 
+use phdose::titration::fit::{MAX_TITRANT_PER_SAMPLE, MEASURED_PH_RANGE};
 use serde::Deserialize;
 
 use super::{Args, example};
@@ -29,7 +30,7 @@ pub struct FitInput {
     pub sample_volume_l: f64,
     /// The titrant.
     pub titrant: Reagent,
-    /// (titrant mL, pH), ascending in titrant.
+    /// (titrant mL, pH), in titrant order (non-decreasing volumes).
     pub points_ml: Vec<(f64, f64)>,
     /// Fit a carbonate total.
     pub carbonate: bool,
@@ -66,69 +67,113 @@ fn check_point(line: &str, ml: f64, ph: f64) -> Result<(), CliError> {
     if ml < 0.0 {
         return Err(CliError::new(format!("{line}: titrant volume {} mL is negative", num(ml))));
     }
-    if !(0.0..=14.0).contains(&ph) {
-        return Err(CliError::new(format!("{line}: pH {} is outside 0-14", num(ph))));
+    let (lo, hi) = MEASURED_PH_RANGE;
+    if !(lo..=hi).contains(&ph) {
+        return Err(CliError::new(format!("{line}: pH {} is outside {}-{}", num(ph), num(lo), num(hi))));
     }
     Ok(())
 }
 
-/// Parses lab points from CSV text: `titrant_ml,ph` per line (comma, semicolon or tab), an
-/// optional header naming those two columns (either order), `#` comments and blank lines.
-/// Returns the points sorted by volume.
-pub fn parse_csv(text: &str, source: &str) -> Result<Vec<(f64, f64)>, CliError> {
-    let mut points = Vec::new();
-    let mut swapped = false;
-    let mut header_allowed = true;
+/// Refuses a volume below the previous point's: a lab sheet out of order is more often a typing
+/// error than a reordering, so it is not sorted silently.
+fn check_order(line: &str, previous_ml: Option<f64>, ml: f64) -> Result<(), CliError> {
+    match previous_ml {
+        Some(p) if ml < p => Err(CliError::new(format!(
+            "{line}: titrant volume {} mL is below the previous point's {} mL; the points must be in titrant \
+             order (non-decreasing volumes)",
+            num(ml),
+            num(p)
+        ))),
+        _ => Ok(()),
+    }
+}
+
+/// Lab points read from CSV text, with the line each came from (1-based).
+#[derive(Clone, Debug, PartialEq)]
+pub struct CsvPoints {
+    /// (titrant mL, pH), in the file's order.
+    pub points_ml: Vec<(f64, f64)>,
+    /// The line of each point.
+    pub lines: Vec<usize>,
+}
+
+/// The columns of a header line: the indices of `titrant_ml` and `ph` (case-insensitive, each
+/// exactly once); other columns are ignored.
+fn header_columns(fields: &[&str], line: &str, content: &str) -> Result<(usize, usize), CliError> {
+    let find = |name: &str| -> Result<usize, CliError> {
+        let mut at = fields.iter().enumerate().filter(|(_, f)| f.eq_ignore_ascii_case(name)).map(|(i, _)| i);
+        match (at.next(), at.next()) {
+            (Some(i), None) => Ok(i),
+            (None, _) => {
+                Err(CliError::new(format!("{line}: a header must name the columns titrant_ml and ph, got '{content}'")))
+            }
+            (Some(_), Some(_)) => Err(CliError::new(format!("{line}: the header names the column {name} twice"))),
+        }
+    };
+    Ok((find("titrant_ml")?, find("ph")?))
+}
+
+/// Parses lab points from CSV text (comma, semicolon or tab; `#` comments and blank lines
+/// allowed). With a header line, the columns named `titrant_ml` and `ph` are read (any order,
+/// any case) and every other column is ignored, so the CSV `phdose curve --csv` writes is read
+/// as it is; every row then has the header's number of fields. Without a header, each line is
+/// `titrant_ml,ph`. A trailing separator is allowed. The points must be in titrant order
+/// (non-decreasing volumes): one out of order is refused with its line, not sorted.
+pub fn parse_csv(text: &str, source: &str) -> Result<CsvPoints, CliError> {
+    let mut out = CsvPoints { points_ml: Vec::new(), lines: Vec::new() };
+    // (titrant_ml column, ph column, fields per row); `None` until a header or a data line.
+    let mut columns: Option<(usize, usize, usize)> = None;
     for (n, raw) in text.lines().enumerate() {
         let line = format!("{source} line {}", n + 1);
         let content = raw.trim_start_matches('\u{feff}').split('#').next().unwrap_or("").trim();
         if content.is_empty() {
             continue;
         }
-        let fields: Vec<&str> = content.split([',', ';', '\t']).map(str::trim).collect();
-        let fields: Vec<&str> = match fields.as_slice() {
-            [a, b, ""] => vec![a, b],
-            other => other.to_vec(),
+        let mut fields: Vec<&str> = content.split([',', ';', '\t']).map(str::trim).collect();
+        if fields.len() > 1 && fields.last() == Some(&"") {
+            fields.pop();
+        }
+        let (ml_at, ph_at, width) = match columns {
+            Some(c) => c,
+            None if fields.first().is_some_and(|a| a.parse::<f64>().is_err()) => {
+                let (ml_at, ph_at) = header_columns(&fields, &line, content)?;
+                columns = Some((ml_at, ph_at, fields.len()));
+                continue;
+            }
+            None => {
+                let c = (0, 1, 2);
+                columns = Some(c);
+                c
+            }
         };
-        let [a, b] = fields.as_slice() else {
+        if fields.len() != width {
+            let what = if width == 2 { " (titrant_ml,ph)".to_owned() } else { " as in the header".to_owned() };
             return Err(CliError::new(format!(
-                "{line}: expected 2 columns (titrant_ml,ph), got {}: '{content}'",
+                "{line}: expected {width} columns{what}, got {}: '{content}'",
                 fields.len()
             )));
-        };
-        if header_allowed && a.parse::<f64>().is_err() {
-            header_allowed = false;
-            let (a, b) = (a.to_ascii_lowercase(), b.to_ascii_lowercase());
-            swapped = match (a.as_str(), b.as_str()) {
-                ("titrant_ml", "ph") => false,
-                ("ph", "titrant_ml") => true,
-                _ => {
-                    return Err(CliError::new(format!(
-                        "{line}: a header must name the columns titrant_ml and ph, got '{content}'"
-                    )));
-                }
-            };
-            continue;
         }
-        header_allowed = false;
-        let (ml_text, ph_text) = if swapped { (b, a) } else { (a, b) };
-        let ml = number(&format!("{line}, titrant_ml"), ml_text)?;
-        let ph = number(&format!("{line}, ph"), ph_text)?;
+        let field = |i: usize| fields.get(i).copied().unwrap_or("");
+        let ml = number(&format!("{line}, titrant_ml"), field(ml_at))?;
+        let ph = number(&format!("{line}, ph"), field(ph_at))?;
         check_point(&line, ml, ph)?;
-        if points.len() >= MAX_POINTS {
+        check_order(&line, out.points_ml.last().map(|p| p.0), ml)?;
+        if out.points_ml.len() >= MAX_POINTS {
             return Err(CliError::new(format!("{source}: more than {MAX_POINTS} points")));
         }
-        points.push((ml, ph));
+        out.points_ml.push((ml, ph));
+        out.lines.push(n + 1);
     }
-    if points.is_empty() {
+    if out.points_ml.is_empty() {
         return Err(CliError::new(format!("{source}: no data points")));
     }
-    points.sort_by(|x, y| x.0.total_cmp(&y.0));
-    Ok(points)
+    Ok(out)
 }
 
 impl FitInput {
-    /// Checks the sample volume and the buffer count.
+    /// Checks the sample volume, the buffer count and each point's volume against the sample
+    /// (at most `MAX_TITRANT_PER_SAMPLE` sample volumes); `label(k)` names point `k` in an
+    /// error (its CSV line or JSON index).
     pub fn new(
         conditions: Conditions,
         sample_volume_l: f64,
@@ -136,8 +181,22 @@ impl FitInput {
         points_ml: Vec<(f64, f64)>,
         carbonate: bool,
         buffers: u8,
+        label: &dyn Fn(usize) -> String,
     ) -> Result<Self, CliError> {
         volume::check_l("sample volume", sample_volume_l)?;
+        let sample_ml = sample_volume_l * 1000.0;
+        let max_ml = MAX_TITRANT_PER_SAMPLE * sample_ml;
+        if let Some((k, (ml, _))) = points_ml.iter().enumerate().find(|(_, (ml, _))| *ml > max_ml) {
+            return Err(CliError::new(format!(
+                "{}: titrant volume {} mL is more than {} times the {} mL sample ({} mL): not a lab titration \
+                 (a unit or typing error?)",
+                label(k),
+                num(*ml),
+                num(MAX_TITRANT_PER_SAMPLE),
+                num(sample_ml),
+                num(max_ml)
+            )));
+        }
         if buffers > 2 {
             return Err(CliError::new(format!("buffers {buffers} must be 0, 1 or 2")));
         }
@@ -160,28 +219,32 @@ impl FitInput {
         if r.points.len() > MAX_POINTS {
             return Err(CliError::new(format!("points: more than {MAX_POINTS}")));
         }
+        let label = |k: usize| format!("points[{k}]");
+        let mut previous = None;
         for (k, (ml, ph)) in r.points.iter().enumerate() {
-            check_point(&format!("points[{k}]"), *ml, *ph)?;
+            check_point(&label(k), *ml, *ph)?;
+            check_order(&label(k), previous, *ml)?;
+            previous = Some(*ml);
         }
-        let mut points = r.points;
-        points.sort_by(|x, y| x.0.total_cmp(&y.0));
         let buffers = check_buffers(r.buffers.unwrap_or(0.0))?;
-        Self::new(conditions, r.sample_volume_l, titrant, points, r.carbonate, buffers)
+        Self::new(conditions, r.sample_volume_l, titrant, r.points, r.carbonate, buffers, &label)
     }
 
     /// The built-in example; `buffers` overrides its buffer count.
     pub fn example(buffers: Option<f64>) -> Result<Self, CliError> {
         let conditions = Conditions::new(Some(example::TEMPERATURE_C), None)?;
         let titrant = Reagent::dissolved(vec![(example::TITRANT.0.to_owned(), example::TITRANT.1)], "titrant")?;
-        let points = parse_csv(example::DATA, "fit-example.csv")?;
+        let csv = parse_csv(example::DATA, "fit-example.csv")?;
         let buffers = buffers.map(check_buffers).transpose()?.unwrap_or(example::BUFFERS);
-        Self::new(conditions, example::SAMPLE_ML / 1000.0, titrant, points, example::CARBONATE, buffers)
+        let label = |k: usize| format!("fit-example.csv line {}", csv.lines.get(k).copied().unwrap_or(0));
+        let (sample_l, carbonate) = (example::SAMPLE_ML / 1000.0, example::CARBONATE);
+        Self::new(conditions, sample_l, titrant, csv.points_ml.clone(), carbonate, buffers, &label)
     }
 
     /// From the command line.
     pub fn from_args(a: &Args) -> Result<Self, CliError> {
         let path = a.data.as_deref().ok_or_else(|| CliError::new("missing --data FILE (or use --example)"))?;
-        let points = parse_csv(&files::read(path, MAX_FILE_BYTES, "data file")?, path)?;
+        let csv = parse_csv(&files::read(path, MAX_FILE_BYTES, "data file")?, path)?;
         let titrant = match (&a.titrant, &a.titrant_json) {
             (Some(t), _) => Reagent::from_flag(t, None, "titrant")?,
             (None, Some(j)) => {
@@ -196,7 +259,8 @@ impl FitInput {
         let sample_ml = a.sample_ml.ok_or_else(|| CliError::new("missing --sample-ml (the sample volume titrated)"))?;
         let buffers = a.buffers.map(check_buffers).transpose()?.unwrap_or(0);
         let conditions = Conditions::from_args(a.conditions, None)?;
-        Self::new(conditions, sample_ml / 1000.0, titrant, points, a.carbonate, buffers)
+        let label = |k: usize| format!("{path} line {}", csv.lines.get(k).copied().unwrap_or(0));
+        Self::new(conditions, sample_ml / 1000.0, titrant, csv.points_ml.clone(), a.carbonate, buffers, &label)
     }
 }
 
@@ -205,14 +269,23 @@ mod tests {
     #![allow(clippy::unwrap_used)]
     use super::*;
 
+    fn points(text: &str) -> Vec<(f64, f64)> {
+        parse_csv(text, "t").unwrap().points_ml
+    }
+
     #[test]
     fn csv_forms() {
-        let a = parse_csv("# lab sheet\ntitrant_ml,ph\n1.0,3.2\n0.0,3.0 # first\n\n2,3.5\n", "t").unwrap();
-        assert_eq!(a, vec![(0.0, 3.0), (1.0, 3.2), (2.0, 3.5)]);
-        let b = parse_csv("pH;Titrant_mL\n3.0;0\n3.2;1\n3.5;2;\n", "t").unwrap();
-        assert_eq!(a, b);
-        let c = parse_csv("0\t3.0\n1\t3.2\n2\t3.5", "t").unwrap();
-        assert_eq!(a, c);
+        let a = parse_csv("# lab sheet\ntitrant_ml,ph\n0.0,3.0 # first\n1.0,3.2\n\n2,3.5\n", "t").unwrap();
+        assert_eq!(a.points_ml, vec![(0.0, 3.0), (1.0, 3.2), (2.0, 3.5)]);
+        assert_eq!(a.lines, vec![3, 4, 6]);
+        assert_eq!(points("pH;Titrant_mL\n3.0;0\n3.2;1\n3.5;2;\n"), a.points_ml);
+        assert_eq!(points("0\t3.0\n1\t3.2\n2\t3.5"), a.points_ml);
+        // The CSV `curve --csv` writes: the columns are picked by name, the rest ignored.
+        let curve = "titrant_ml,ph,buffer_capacity_mol_per_l_per_ph\n0,3.0,0.001\n1,3.2,0.002\n2,3.5,0.004\n";
+        assert_eq!(points(curve), a.points_ml);
+        assert_eq!(points("sample,ph,note,titrant_ml\nA,3.0,x,0\nA,3.2,,1\nB,3.5,y,2\n"), a.points_ml);
+        // Repeated readings at one volume are kept in order.
+        assert_eq!(points("0,3.0\n1,3.2\n1,3.25\n"), vec![(0.0, 3.0), (1.0, 3.2), (1.0, 3.25)]);
     }
 
     #[test]
@@ -225,6 +298,10 @@ mod tests {
             ("-1,7\n", "negative"),
             ("# nothing\n", "no data"),
             ("0,3\ntitrant_ml,ph\n", "line 2"),
+            ("0,3.0\n2,3.5\n1,3.2\n", "line 3: titrant volume 1 mL is below the previous point's 2 mL"),
+            ("titrant_ml,ph,capacity\n0,3,1\n1,3.2\n", "line 3: expected 3 columns as in the header"),
+            ("titrant_ml,ph,ph\n0,3,3\n", "names the column ph twice"),
+            ("titrant_ml,capacity\n0,3\n", "header"),
         ] {
             let e = parse_csv(text, "t").unwrap_err();
             assert!(e.message().contains(expect), "{text:?}: {e}");

@@ -1,20 +1,28 @@
-//! The `fit` JSON document.
+//! The `fit` JSON document (also for a refused fit: `quality` says which).
 
+use phdose::titration::fit::MAX_RMS_PH;
 use serde::Serialize;
 
-use super::report::FitReport;
+use super::report::{FitReport, refusal_key, refusal_reason};
 use crate::cli::CliError;
 use crate::cli::json::{self, Num};
 use crate::cli::reagent::ReagentOut;
 
 #[derive(Serialize)]
 struct Output<'a> {
-    strong_charge_meq_per_l: Value,
+    quality: &'static str,
+    refusal: Option<&'static str>,
+    reason: Option<String>,
+    strong_charge_meq_per_l: Option<Value>,
     carbonate_mmol_per_l: Option<Value>,
     buffers: Vec<BufferOut>,
-    rms_ph: Num,
+    rms_ph: Option<Num>,
+    max_rms_ph: Num,
     points: u32,
-    iterations: u32,
+    iterations: Option<u32>,
+    converged: Option<bool>,
+    data_ph_range: [Num; 2],
+    allowed_pka_range: [Num; 2],
     start: StartOut<'a>,
     sample_volume_l: Num,
     titrant: ReagentOut,
@@ -43,34 +51,46 @@ struct StartOut<'a> {
     basis: &'a str,
 }
 
-/// Renders the report; `svg` names the plot file written, if any.
+/// Renders the report; `svg` names the plot file written, if any. A refused fit has
+/// `"quality": "refused"`, its `refusal` key and `reason`; the values are those of the refused
+/// fit, or null when it was refused before a result (ill-conditioned).
 pub fn render(r: &FitReport, svg: Option<&str>) -> Result<String, CliError> {
-    let e = &r.result.effective;
-    let se = &r.result.standard_errors;
     let i = &r.input;
     let nb = usize::from(i.buffers);
+    let res = r.result.as_ref();
+    let value = |v: f64, se: f64, scale: f64| Value { value: Num(v * scale), standard_error: Num(se * scale) };
+    let (lo, hi) = r.data_ph_range();
+    let (pka_lo, pka_hi) = r.allowed_pka_range();
     let out = Output {
-        strong_charge_meq_per_l: Value {
-            value: Num(e.strong_charge_eq_per_l * 1000.0),
-            standard_error: Num(se.strong_charge_eq_per_l * 1000.0),
-        },
-        carbonate_mmol_per_l: i.carbonate.then_some(Value {
-            value: Num(e.carbonate_mol_per_l * 1000.0),
-            standard_error: Num(se.carbonate_mol_per_l * 1000.0),
-        }),
-        buffers: e
-            .buffers
-            .iter()
-            .zip(se.buffers.iter())
-            .take(nb)
-            .map(|((c, pka), (sc, spka))| BufferOut {
-                total_mmol_per_l: Value { value: Num(c * 1000.0), standard_error: Num(sc * 1000.0) },
-                pka: Value { value: Num(*pka), standard_error: Num(*spka) },
+        quality: if r.refusal.is_some() { "refused" } else { "accepted" },
+        refusal: r.refusal.as_ref().map(refusal_key),
+        reason: r.refusal.as_ref().map(refusal_reason),
+        strong_charge_meq_per_l: res
+            .map(|f| value(f.effective.strong_charge_eq_per_l, f.standard_errors.strong_charge_eq_per_l, 1000.0)),
+        carbonate_mmol_per_l: res
+            .filter(|_| i.carbonate)
+            .map(|f| value(f.effective.carbonate_mol_per_l, f.standard_errors.carbonate_mol_per_l, 1000.0)),
+        buffers: res
+            .map(|f| {
+                f.effective
+                    .buffers
+                    .iter()
+                    .zip(f.standard_errors.buffers.iter())
+                    .take(nb)
+                    .map(|((c, pka), (sc, spka))| BufferOut {
+                        total_mmol_per_l: value(*c, *sc, 1000.0),
+                        pka: value(*pka, *spka, 1.0),
+                    })
+                    .collect()
             })
-            .collect(),
-        rms_ph: Num(r.result.rms_ph),
-        points: r.result.points,
-        iterations: r.result.iterations,
+            .unwrap_or_default(),
+        rms_ph: res.map(|f| Num(f.rms_ph)),
+        max_rms_ph: Num(MAX_RMS_PH),
+        points: u32::try_from(i.points_ml.len()).unwrap_or(u32::MAX),
+        iterations: res.map(|f| f.iterations),
+        converged: res.map(|f| f.converged),
+        data_ph_range: [Num(lo), Num(hi)],
+        allowed_pka_range: [Num(pka_lo), Num(pka_hi)],
         start: StartOut {
             strong_charge_meq_per_l: Num(r.start.effective.strong_charge_eq_per_l * 1000.0),
             carbonate_mmol_per_l: i.carbonate.then_some(Num(r.start.effective.carbonate_mol_per_l * 1000.0)),

@@ -10,12 +10,15 @@ use std::io::Read;
 
 use super::conditions::ConditionArgs;
 use super::files::{self, OutArgs, Output};
-use super::{CliError, Mode, json as json_io, value};
+use super::{CliError, Mode, REFUSED_CODE, Reply, json as json_io, value};
 use input::FitInput;
 
 const AFTER_HELP: &str = "\
-The data file is CSV: titrant_ml,ph per line (comma, semicolon or tab), an optional header
-naming those two columns, `#` comments and blank lines allowed. Points are sorted by volume.
+The data file is CSV (comma, semicolon or tab; `#` comments and blank lines allowed). With a
+header line, the columns named titrant_ml and ph are read and any others ignored, so the CSV
+that `phdose curve --csv` writes is read as it is; without one, each line is titrant_ml,ph.
+The points must be in titrant order (non-decreasing volumes; a point out of order is refused
+with its line, not sorted), each volume at most 10 times the sample volume and each pH 0-14.
 The fit (Levenberg-Marquardt in phdose::titration::fit) always finds the net strong-ion charge;
 --carbonate adds a carbonate total, --buffers N adds N generic monoprotic buffers (total and
 pKa, taken with no temperature dependence).
@@ -27,12 +30,21 @@ cross 7, from the first point as strong ions and water only; carbonate 1 mmol/L;
 the thirds for two).
 
 Prints each fitted value with its standard error: strong charge (meq/L; negative = net strong
-acid), carbonate (mmol/L), buffers (mmol/L and pKa), the residual RMS (pH) and the iterations.
---svg (or --out DIR, as fit.svg) plots the lab points against the fitted model. A fit the data
-cannot determine is refused with exit code 2 and names the parameter (fit fewer parameters, or
-titrate over a wider pH range). --example: invented lab titration of a fictional plating-shop
-influent with 0.05 mol/L NaOH (host/examples-data/fit-example.csv; its header states the true
-composition).
+acid), carbonate (mmol/L), buffers (mmol/L and pKa), the residual RMS (pH), the iterations,
+whether they converged, and a quality line. --svg (or --out DIR, as fit.svg) plots the lab
+points against the fitted model.
+
+Quality: a fit is refused, with exit code 1 and the reason (first line of the report, or
+\"quality\": \"refused\" with \"refusal\" and \"reason\" in JSON), when
+  ill_conditioned       the data do not determine a parameter (it is named); no values shown
+  not_converged         the iterations stopped at their cap (60) while still improving
+  pka_outside_data      a fitted pKa is not 0.3 pH inside the pH range the data cover: the
+                        data must bracket it, or they show only the tail of that buffer
+  residual_above_bound  the RMS residual is above 0.05 pH (a few times a lab meter's noise)
+checked in that order. A refused fit's numbers are shown marked as such: they are not the
+sample's. Bad input (unreadable or disordered data, impossible volumes) is exit code 2.
+--example: invented lab titration of a fictional plating-shop influent with 0.05 mol/L NaOH
+(host/examples-data/fit-example.csv; its header states the true composition).
 
 JSON request (carbonate, buffers, temperature_c and activity optional; defaults false, 0, 25,
 \"davies\"):
@@ -40,13 +52,20 @@ JSON request (carbonate, buffers, temperature_c and activity optional; defaults 
    \"points\": [[0, 2.61], [0.5, 2.68], ...], \"carbonate\": true, \"buffers\": 1,
    \"temperature_c\": 20, \"activity\": \"ideal\"}
 
-JSON result: strong_charge_meq_per_l {value, standard_error}, carbonate_mmol_per_l (or null),
-buffers [{total_mmol_per_l {value, standard_error}, pka {value, standard_error}}], rms_ph,
-points, iterations, start {strong_charge_meq_per_l, carbonate_mmol_per_l, buffer_pkas, basis},
-sample_volume_l, titrant, temperature_c, activity, svg_file.
+JSON result: quality (\"accepted\" or \"refused\"), refusal (null or one of the keys above),
+reason (null or the refusal in words with what to try), strong_charge_meq_per_l {value,
+standard_error}, carbonate_mmol_per_l (or null), buffers [{total_mmol_per_l {value,
+standard_error}, pka {value, standard_error}}], rms_ph, max_rms_ph (the bound), points,
+iterations, converged, data_ph_range [lowest, highest], allowed_pka_range [lowest, highest]
+(the data's range narrowed by 0.3 pH at each end),
+start {strong_charge_meq_per_l, carbonate_mmol_per_l, buffer_pkas, basis}, sample_volume_l,
+titrant, temperature_c, activity, svg_file. An ill-conditioned refusal has no result: the
+values, rms_ph, iterations and converged are null and buffers is empty.
 
 Examples:
   phdose fit --data lab.csv --titrant NaOH=0.05 --sample-ml 100 --carbonate --buffers 1 --svg fit.svg
+  phdose curve NaHCO3=0.003 NaCl=0.002 --titrant HCl=0.02 --sample-ml 50 --max-titrant-ml 12 --csv c.csv
+  phdose fit --data c.csv --titrant HCl=0.02 --sample-ml 50 --carbonate
   phdose fit --json --svg fit.svg < request.json
   phdose fit --example --buffers 0 --out figures";
 
@@ -54,7 +73,7 @@ Examples:
 #[derive(Debug, clap::Args)]
 #[command(after_help = AFTER_HELP)]
 pub struct Args {
-    /// The lab titration: a CSV file of titrant_ml,ph
+    /// The lab titration: a CSV file with the columns titrant_ml and ph (others ignored)
     #[arg(long, value_name = "FILE")]
     data: Option<String>,
     /// The titrant: NAME=MOL_PER_L[,NAME=MOL_PER_L...] or NAME=PERCENT%
@@ -84,8 +103,9 @@ pub struct Args {
     example: bool,
 }
 
-/// Runs `fit`.
-pub fn run(args: Args, stdin: &mut dyn Read) -> Result<String, CliError> {
+/// Runs `fit`: exit 0 with an accepted fit, [`REFUSED_CODE`] when the fit is refused for its
+/// quality (the report or JSON document says why).
+pub fn run(args: Args, stdin: &mut dyn Read) -> Result<Reply, CliError> {
     let mode = Mode::of(args.json);
     let (request, title) = if args.example {
         (FitInput::example(args.buffers)?, Some(example::TITLE))
@@ -106,8 +126,10 @@ pub fn run(args: Args, stdin: &mut dyn Read) -> Result<String, CliError> {
     let svg = || files::svg(&table::plot(&report));
     let outputs = [Output { what: "SVG plot", name: "fit.svg", path: args.files.svg.as_deref(), content: &svg }];
     let written = files::write_outputs(&args.files, &outputs)?;
-    match mode {
-        Mode::Json => json::render(&report, written.path(0)),
-        Mode::Table => Ok(table::render(&report, title, &written.lines)),
-    }
+    let code = if report.refusal.is_some() { REFUSED_CODE } else { 0 };
+    let stdout = match mode {
+        Mode::Json => json::render(&report, written.path(0))?,
+        Mode::Table => table::render(&report, title, &written.lines),
+    };
+    Ok(Reply { stdout, code })
 }

@@ -3,7 +3,9 @@
 use heapless::Vec as FixedVec;
 use phdose::chem::Solution;
 use phdose::titration::curve::{CurvePoint, Titration, strong_equivalents_eq_per_l};
-use phdose::titration::fit::{self, Effective, FitError, FitResult, FitSpec, PKA_RANGE};
+use phdose::titration::fit::{
+    self, Effective, FitError, FitQuality, FitResult, FitSpec, PKA_INSIDE_DATA_PH, PKA_RANGE,
+};
 
 use super::input::FitInput;
 use crate::cli::CliError;
@@ -36,10 +38,58 @@ pub struct FitReport {
     pub input: FitInput,
     /// Where the fit started.
     pub start: Start,
-    /// The fit.
-    pub result: FitResult<f64>,
-    /// The fitted model's curve over the data's titrant range, for the plot.
+    /// The fit (`None` when it was refused as ill-conditioned: no result to show).
+    pub result: Option<FitResult<f64>>,
+    /// Why the fit is refused for its quality (`None`: accepted).
+    pub refusal: Option<FitError>,
+    /// The fitted model's curve over the data's titrant range, for the plot (empty without a
+    /// result).
     pub model_curve: Vec<CurvePoint<f64>>,
+}
+
+impl FitReport {
+    /// The data's lowest and highest pH.
+    pub fn data_ph_range(&self) -> (f64, f64) {
+        self.input
+            .points_ml
+            .iter()
+            .fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), (_, p)| (lo.min(*p), hi.max(*p)))
+    }
+
+    /// The pH range a fitted pKa must lie in: the data's, narrowed by `PKA_INSIDE_DATA_PH` at
+    /// each end (empty, lowest above highest, when the data span less than twice that).
+    pub fn allowed_pka_range(&self) -> (f64, f64) {
+        let (lo, hi) = self.data_ph_range();
+        (lo + PKA_INSIDE_DATA_PH, hi - PKA_INSIDE_DATA_PH)
+    }
+}
+
+/// The refusal's key in the JSON document.
+pub fn refusal_key(e: &FitError) -> &'static str {
+    match e {
+        FitError::IllConditioned { .. } => "ill_conditioned",
+        FitError::NotConverged { .. } => "not_converged",
+        FitError::PkaOutsideData { .. } => "pka_outside_data",
+        FitError::ResidualAboveBound { .. } => "residual_above_bound",
+        _ => "other",
+    }
+}
+
+/// What to try after a refusal.
+pub fn refusal_hint(e: &FitError) -> &'static str {
+    match e {
+        FitError::NotConverged { .. } => "fit fewer unknowns (--buffers, --carbonate)",
+        FitError::PkaOutsideData { .. } => "fit fewer buffers (--buffers) or titrate over a wider pH range",
+        FitError::ResidualAboveBound { .. } => {
+            "fit a carbonate total (--carbonate) or buffers (--buffers), or check the titrant and the sample volume"
+        }
+        _ => "fit fewer unknowns (--buffers, --carbonate) or titrate over a wider pH range",
+    }
+}
+
+/// The refusal in words, with what to try.
+pub fn refusal_reason(e: &FitError) -> String {
+    format!("{e}; {}", refusal_hint(e))
 }
 
 /// The volume (mL) where the points cross pH 7, by linear interpolation between the first
@@ -86,14 +136,9 @@ pub fn guess(input: &FitInput, titrant: &ReagentSolution) -> Start {
     Start { effective: Effective { strong_charge_eq_per_l: strong, carbonate_mol_per_l: carbonate, buffers }, basis }
 }
 
-fn refused(e: FitError) -> CliError {
-    match e {
-        FitError::IllConditioned { parameter } => CliError::new(format!(
-            "ill-conditioned fit: the titration data do not determine the {parameter}; fit fewer unknowns \
-             (--buffers, --carbonate) or titrate over a wider pH range"
-        )),
-        other => CliError::new(format!("fit: {other}")),
-    }
+/// An error that is not a quality refusal: bad input or a model failure (exit 2).
+fn input_error(e: FitError) -> CliError {
+    CliError::new(format!("fit: {e}"))
 }
 
 /// Runs the fit and computes the fitted model's curve.
@@ -117,10 +162,25 @@ pub fn compute(input: FitInput) -> Result<FitReport, CliError> {
     };
     let data: Vec<(f64, f64)> = input.points_ml.iter().map(|(ml, ph)| (ml / 1000.0, *ph)).collect();
     let start = guess(&input, &titrant);
-    let result = fit::fit(&spec, &titrant, &data, &start.effective).map_err(refused)?;
+    let (result, refusal) = match fit::fit_assessed(&spec, &titrant, &data, &start.effective) {
+        Ok(r) => {
+            let refusal = match r.quality {
+                FitQuality::Accepted => None,
+                FitQuality::Refused(e) => Some(e),
+            };
+            (r, refusal)
+        }
+        Err(e) if e.is_quality_refusal() => {
+            return Ok(FitReport { input, start, result: None, refusal: Some(e), model_curve: Vec::new() });
+        }
+        Err(e) => return Err(input_error(e)),
+    };
 
     let max_l = data.iter().map(|(v, _)| *v).fold(0.0, f64::max);
-    let model_curve = if max_l > 0.0 {
+    let model_curve = || -> Result<Vec<CurvePoint<f64>>, CliError> {
+        if max_l <= 0.0 {
+            return Ok(Vec::new());
+        }
         let sample: Solution<f64, 8> = result
             .effective
             .solution(c.temperature, c.activity)
@@ -128,11 +188,12 @@ pub fn compute(input: FitInput) -> Result<FitReport, CliError> {
         let t = Titration { sample: &sample, sample_volume_l: input.sample_volume_l, titrant: &titrant };
         let mut out: FixedVec<CurvePoint<f64>, MODEL_CURVE_POINTS> = FixedVec::new();
         t.curve(max_l, &mut out).map_err(|e| CliError::new(format!("fitted model curve: {e}")))?;
-        out.to_vec()
-    } else {
-        Vec::new()
+        Ok(out.to_vec())
     };
-    Ok(FitReport { input, start, result, model_curve })
+    // A refused fit's parameters may be far from any real water: without its curve the report
+    // still stands (the plot shows the lab points alone).
+    let model_curve = if refusal.is_some() { model_curve().unwrap_or_default() } else { model_curve()? };
+    Ok(FitReport { input, start, result: Some(result), refusal, model_curve })
 }
 
 #[cfg(test)]

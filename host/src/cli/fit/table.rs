@@ -2,9 +2,11 @@
 
 use std::fmt::Write;
 
-use super::report::FitReport;
+use phdose::titration::fit::{FitResult, MAX_FIT_ITERATIONS, MAX_RMS_PH};
+
+use super::report::{FitReport, refusal_hint, refusal_key};
 use crate::cli::caution::CAUTION;
-use crate::cli::format::{fixed, sig};
+use crate::cli::format::{fixed, num, sig};
 use crate::cli::layout;
 use crate::plot::{self, Figure, LegendAt, Panel, Series, Style};
 
@@ -15,13 +17,23 @@ fn pm(value: f64, se: f64, decimals: usize) -> String {
 }
 
 /// Renders the report; `title` (used by `--example`) goes first; `written` lists files written.
+/// A refused fit starts with `FIT REFUSED:` and the reason, and its numbers (when the fit ran
+/// to the end) are marked as the refused fit's.
 pub fn render(r: &FitReport, title: Option<&str>, written: &[String]) -> String {
     let i = &r.input;
-    let e = &r.result.effective;
-    let se = &r.result.standard_errors;
     let activity = layout::activity(i.conditions.activity);
     let mut s = layout::start(title);
-    let _ = writeln!(s, "Effective composition fitted to {} lab points", r.result.points);
+    if let Some(e) = &r.refusal {
+        let _ = writeln!(s, "FIT REFUSED: {e}");
+        let _ = writeln!(s, "{:<LABEL$}{}", "what to try", refusal_hint(e));
+        let _ = writeln!(s);
+    }
+    let heading = match (&r.refusal, &r.result) {
+        (None, _) => "Effective composition fitted to",
+        (Some(_), Some(_)) => "Refused fit (its numbers are not the sample's) of",
+        (Some(_), None) => "No composition: the fit was refused before a result, for",
+    };
+    let _ = writeln!(s, "{heading} {} lab points", i.points_ml.len());
     let _ = writeln!(
         s,
         "{:<LABEL$}{} mL titrated with {}, {:.1} °C, {activity}",
@@ -30,26 +42,13 @@ pub fn render(r: &FitReport, title: Option<&str>, written: &[String]) -> String 
         i.titrant.describe(),
         i.conditions.celsius()
     );
+    let (lo, hi) = r.data_ph_range();
+    let _ = writeln!(s, "{:<LABEL$}pH {} to {}", "data", fixed(lo, 2), fixed(hi, 2));
     let _ = writeln!(s);
-    let q = e.strong_charge_eq_per_l * 1000.0;
-    let sense = if q < 0.0 { "net strong acid" } else { "net strong base" };
-    let _ =
-        writeln!(s, "{:<LABEL$}{} meq/L   ({sense})", "strong charge", pm(q, se.strong_charge_eq_per_l * 1000.0, 3));
-    if i.carbonate {
-        let _ = writeln!(
-            s,
-            "{:<LABEL$}{} mmol/L",
-            "carbonate",
-            pm(e.carbonate_mol_per_l * 1000.0, se.carbonate_mol_per_l * 1000.0, 3)
-        );
+    if let Some(result) = &r.result {
+        values(&mut s, r, result);
     }
-    for (k, ((c, pka), (sc, spka))) in e.buffers.iter().zip(se.buffers.iter()).take(usize::from(i.buffers)).enumerate()
-    {
-        let name = if k == 0 { "buffer a" } else { "buffer b" };
-        let _ = writeln!(s, "{:<LABEL$}{} mmol/L, pKa {}", name, pm(c * 1000.0, sc * 1000.0, 3), pm(*pka, *spka, 2));
-    }
-    let _ = writeln!(s, "{:<LABEL$}{} pH", "residual RMS", sig(r.result.rms_ph, 3));
-    let _ = writeln!(s, "{:<LABEL$}{} (Levenberg-Marquardt)", "iterations", r.result.iterations);
+    let _ = writeln!(s, "{:<LABEL$}{}", "quality", quality_line(r));
     let st = &r.start.effective;
     let _ = writeln!(
         s,
@@ -69,9 +68,59 @@ pub fn render(r: &FitReport, title: Option<&str>, written: &[String]) -> String 
         let _ = writeln!(s, "{:<LABEL$}{}", "", rest.join("; "));
     }
     let _ = writeln!(s);
-    let _ = writeln!(s, "± is one standard error. Buffers are generic monoprotic acids (pKa without temperature");
-    let _ = writeln!(s, "dependence); together they stand for whatever buffers the real influent.");
+    if r.result.is_some() {
+        let _ = writeln!(s, "± is one standard error. Buffers are generic monoprotic acids (pKa without temperature");
+        let _ = writeln!(s, "dependence); together they stand for whatever buffers the real influent.");
+    }
     layout::finish(s, written, CAUTION)
+}
+
+/// The fitted values with their standard errors, the residual and the iterations.
+fn values(s: &mut String, r: &FitReport, result: &FitResult<f64>) {
+    let i = &r.input;
+    let e = &result.effective;
+    let se = &result.standard_errors;
+    let q = e.strong_charge_eq_per_l * 1000.0;
+    let sense = if q < 0.0 { "net strong acid" } else { "net strong base" };
+    let _ =
+        writeln!(s, "{:<LABEL$}{} meq/L   ({sense})", "strong charge", pm(q, se.strong_charge_eq_per_l * 1000.0, 3));
+    if i.carbonate {
+        let _ = writeln!(
+            s,
+            "{:<LABEL$}{} mmol/L",
+            "carbonate",
+            pm(e.carbonate_mol_per_l * 1000.0, se.carbonate_mol_per_l * 1000.0, 3)
+        );
+    }
+    for (k, ((c, pka), (sc, spka))) in e.buffers.iter().zip(se.buffers.iter()).take(usize::from(i.buffers)).enumerate()
+    {
+        let name = if k == 0 { "buffer a" } else { "buffer b" };
+        let _ = writeln!(s, "{:<LABEL$}{} mmol/L, pKa {}", name, pm(c * 1000.0, sc * 1000.0, 3), pm(*pka, *spka, 2));
+    }
+    let _ = writeln!(s, "{:<LABEL$}{} pH (bound {})", "residual RMS", sig(result.rms_ph, 3), num(MAX_RMS_PH));
+    let how = if result.converged {
+        "converged: no step improved the residual any more".to_owned()
+    } else {
+        format!("did not converge: stopped at the cap of {MAX_FIT_ITERATIONS}")
+    };
+    let _ = writeln!(s, "{:<LABEL$}{} (Levenberg-Marquardt), {how}", "iterations", result.iterations);
+}
+
+/// The quality verdict in one line: what was checked, or why the fit is refused.
+fn quality_line(r: &FitReport) -> String {
+    match &r.refusal {
+        Some(e) => format!("REFUSED ({}): see above", refusal_key(e).replace('_', " ")),
+        None => {
+            let (lo, hi) = r.allowed_pka_range();
+            // The data's range narrowed by PKA_INSIDE_DATA_PH at each end.
+            let pka = if r.input.buffers > 0 {
+                format!(", pKa within pH {}-{}", fixed(lo, 2), fixed(hi, 2))
+            } else {
+                String::new()
+            };
+            format!("accepted: identifiable, converged, RMS <= {} pH{pka}", num(MAX_RMS_PH))
+        }
+    }
 }
 
 /// The figure: lab points as squares, the fitted model as a line.
@@ -92,7 +141,11 @@ pub fn plot(r: &FitReport) -> Figure {
             y_label: "pH".to_owned(),
             series: vec![
                 Series {
-                    name: format!("fitted model (RMS {} pH)", sig(r.result.rms_ph, 2)),
+                    name: match (&r.result, &r.refusal) {
+                        (Some(f), None) => format!("fitted model (RMS {} pH)", sig(f.rms_ph, 2)),
+                        (Some(f), Some(_)) => format!("refused fit (RMS {} pH)", sig(f.rms_ph, 2)),
+                        (None, _) => "no model: fit refused".to_owned(),
+                    },
                     points: r.model_curve.iter().map(|p| (p.titrant_l * 1000.0, p.ph)).collect(),
                     style: Style::Line,
                     color: plot::BLUE,
