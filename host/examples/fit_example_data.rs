@@ -62,6 +62,7 @@ fn main() -> Result<(), Box<dyn Error>> {
     let truth = Effective {
         strong_charge_eq_per_l: STRONG_CHARGE_EQ_PER_L,
         carbonate_mol_per_l: CARBONATE_MOL_PER_L,
+        phosphate_mol_per_l: 0.0,
         buffers: [BUFFER, (0.0, 7.0)],
     };
     let sample: Solution<f64, 4> = truth.solution(t, Activity::Davies)?;

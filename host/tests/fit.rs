@@ -45,17 +45,18 @@ fn check_recovery(doc: &Value) {
         assert!((x - truth).abs() <= tol, "{x} vs true {truth} (± {tol})");
         assert!(se > 0.0 && (x - truth).abs() <= 4.0 * se + 0.1 * tol, "{x} ± {se} vs true {truth}");
     };
-    close(&doc["strong_charge_meq_per_l"], STRONG_MEQ_PER_L, 0.02 * 3.0);
-    close(&doc["carbonate_mmol_per_l"], CARBONATE_MMOL_PER_L, 0.1 * CARBONATE_MMOL_PER_L);
+    close(&doc["strong_charge_eq_per_l"], STRONG_MEQ_PER_L / 1000.0, 0.02 * 3.0 / 1000.0);
+    close(&doc["carbonate_mol_per_l"], CARBONATE_MMOL_PER_L / 1000.0, 0.1 * CARBONATE_MMOL_PER_L / 1000.0);
     let buffers = doc["buffers"].as_array().unwrap();
     assert_eq!(buffers.len(), 1);
-    close(&buffers[0]["total_mmol_per_l"], BUFFER_MMOL_PER_L, 0.1 * BUFFER_MMOL_PER_L);
+    close(&buffers[0]["total_mol_per_l"], BUFFER_MMOL_PER_L / 1000.0, 0.1 * BUFFER_MMOL_PER_L / 1000.0);
     close(&buffers[0]["pka"], BUFFER_PKA, 0.1);
     // The residual is the noise level (sd 0.01 pH, rounded to 0.001).
     let rms = num(doc, "rms_ph");
     assert!(rms > 0.5 * NOISE_SD_PH && rms < 1.5 * NOISE_SD_PH, "rms {rms}");
-    assert_eq!(doc["points"].as_u64(), Some(49));
-    assert!(doc["iterations"].as_u64().unwrap() >= 1);
+    assert_eq!(doc["point_count"].as_u64(), Some(49));
+    assert!(doc["fit_iterations"].as_u64().unwrap() >= 1);
+    assert!(doc.get("points").is_none() && doc.get("iterations").is_none(), "one name per quantity");
 }
 
 #[test]
@@ -77,6 +78,7 @@ fn the_data_file_is_what_its_header_says() {
     let truth = Effective {
         strong_charge_eq_per_l: STRONG_MEQ_PER_L * 1e-3,
         carbonate_mol_per_l: CARBONATE_MMOL_PER_L * 1e-3,
+        phosphate_mol_per_l: 0.0,
         buffers: [(BUFFER_MMOL_PER_L * 1e-3, BUFFER_PKA), (0.0, 7.0)],
     };
     let sample: Solution<f64, 4> = truth.solution(t, Activity::Davies).unwrap();
@@ -99,12 +101,12 @@ fn example_recovers_the_true_composition() {
     let doc = ok_json(&["fit", "--example", "--json"], "");
     check_recovery(&doc);
     assert_eq!(num(&doc, "temperature_c"), 20.0);
-    assert_eq!(num(&doc, "sample_volume_l"), 0.1);
+    assert_eq!(num(&doc, "sample_volume_ml"), 100.0);
     // The documented start: strong charge from the pH 7 crossing, 1 mmol/L carbonate, the
     // buffer's pKa mid-way through the data's pH range.
     let start = &doc["start"];
     assert!(start["basis"].as_str().unwrap().contains("pH 7 crossing"));
-    assert_eq!(num(start, "carbonate_mmol_per_l"), 1.0);
+    assert_eq!(num(start, "carbonate_mol_per_l"), 1e-3);
     let points = data_points(&example_csv());
     let (lo, hi) = points.iter().fold((14.0f64, 0.0f64), |(a, b), (_, p)| (a.min(*p), b.max(*p)));
     assert!((start["buffer_pkas"][0].as_f64().unwrap() - (lo + hi) / 2.0).abs() < 1e-12);
@@ -134,7 +136,7 @@ fn file_flags_and_json_agree() {
         svg.to_str().unwrap(),
     ]);
     let example = ok_json(&["fit", "--example", "--json"], "");
-    let q = num(&example["strong_charge_meq_per_l"], "value");
+    let q = num(&example["strong_charge_eq_per_l"], "value") * 1000.0;
     let line = out.lines().find(|l| l.starts_with("strong charge")).unwrap();
     assert!(line.contains(&format!("{q:.3} ±")), "{line} vs {q}");
     for word in ["carbonate", "buffer a", "pKa", "residual RMS", "iterations", "SAFETY.md"] {
@@ -143,13 +145,13 @@ fn file_flags_and_json_agree() {
 
     let pairs: Vec<String> = data_points(&example_csv()).iter().map(|(v, ph)| format!("[{v}, {ph}]")).collect();
     let request = format!(
-        r#"{{"sample_volume_l": 0.1, "titrant": {{"dissolved": {{"NaOH": 0.05}}}}, "points": [{}],
+        r#"{{"sample_volume_ml": 100, "titrant": {{"dissolved": {{"NaOH": 0.05}}}}, "points": [{}],
             "carbonate": true, "buffers": 1, "temperature_c": 20, "activity": "davies"}}"#,
         pairs.join(", ")
     );
     let doc = ok_json(&["fit", "--json"], &request);
     check_recovery(&doc);
-    assert_eq!(doc["strong_charge_meq_per_l"], example["strong_charge_meq_per_l"]);
+    assert_eq!(doc["strong_charge_eq_per_l"], example["strong_charge_eq_per_l"]);
 
     // The plot (well-formed XML): the fitted model as a blue line, one red square per lab point
     // and one in the legend.
@@ -189,8 +191,8 @@ fn ill_conditioned_fits_are_refused_with_exit_1_and_the_parameter_named() {
     assert_eq!((doc["quality"].as_str(), doc["refusal"].as_str()), (Some("refused"), Some("ill_conditioned")));
     let msg = doc["reason"].as_str().unwrap();
     assert!(msg.starts_with("ill-conditioned fit") && msg.contains("buffer"), "{msg}");
-    assert!(doc["strong_charge_meq_per_l"].is_null() && doc["converged"].is_null(), "{doc}");
-    assert_eq!(doc["points"].as_u64(), Some(49));
+    assert!(doc["strong_charge_eq_per_l"].is_null() && doc["converged"].is_null(), "{doc}");
+    assert_eq!(doc["point_count"].as_u64(), Some(49));
 
     // Strong acid titrated only to pH 3.4 (invented rinse-tank check): nothing there shows a
     // carbonate total, so asking for one is refused and named.
@@ -203,7 +205,7 @@ fn ill_conditioned_fits_are_refused_with_exit_1_and_the_parameter_named() {
         })
         .collect();
     let request = format!(
-        r#"{{"sample_volume_l": 0.1, "titrant": {{"dissolved": {{"NaOH": 0.05}}}}, "points": [{}],
+        r#"{{"sample_volume_ml": 100, "titrant": {{"dissolved": {{"NaOH": 0.05}}}}, "points": [{}],
             "carbonate": true, "activity": "ideal"}}"#,
         points.join(", ")
     );
@@ -212,7 +214,7 @@ fn ill_conditioned_fits_are_refused_with_exit_1_and_the_parameter_named() {
     assert!(msg.contains("ill-conditioned") && msg.contains("carbonate"), "{msg}");
     // Without the carbonate the same data fit: −5 meq/L, accepted.
     let ok = ok_json(&["fit", "--json"], &request.replace(r#""carbonate": true, "#, ""));
-    assert!((num(&ok["strong_charge_meq_per_l"], "value") + 5.0).abs() < 0.01, "{ok}");
+    assert!((num(&ok["strong_charge_eq_per_l"], "value") + 5e-3).abs() < 1e-5, "{ok}");
     assert_eq!((ok["quality"].as_str(), ok["converged"].as_bool()), (Some("accepted"), Some(true)), "{ok}");
     assert!(ok["refusal"].is_null() && ok["reason"].is_null(), "{ok}");
 }
@@ -249,7 +251,7 @@ fn input_errors_exit_2() {
     );
     assert!(table_error(&["fit"]).contains("--data"));
 
-    let base = r#""sample_volume_l": 0.1, "titrant": {"dissolved": {"NaOH": 0.05}}"#;
+    let base = r#""sample_volume_ml": 100, "titrant": {"dissolved": {"NaOH": 0.05}}"#;
     let pts = r#""points": [[0, 3], [1, 3.2], [2, 3.5], [3, 4], [4, 7]]"#;
     for (body, expect) in [
         (format!("{base}, {pts}, \"buffers\": 1.5"), "0, 1 or 2"),
@@ -257,7 +259,10 @@ fn input_errors_exit_2() {
         (format!("{base}, \"points\": [[-1, 3]]"), "negative"),
         (format!("{base}, \"points\": [[0, 3, 4]]"), "invalid JSON"),
         (format!("{base}, {pts}, \"seed\": 1"), "unknown field"),
-        (format!("\"sample_volume_l\": 0, \"titrant\": {{\"dissolved\": {{\"NaOH\": 0.05}}}}, {pts}"), "sample volume"),
+        (
+            format!("\"sample_volume_ml\": 0, \"titrant\": {{\"dissolved\": {{\"NaOH\": 0.05}}}}, {pts}"),
+            "sample volume",
+        ),
         (format!("{base}, \"points\": [[0, 3], [1, 4]], \"carbonate\": true"), "at least"),
     ] {
         let msg = json_error(&["fit", "--json"], &format!("{{{body}}}"));
@@ -361,7 +366,7 @@ fn make_up_water_request(name: &str, carbonate: bool, buffers: u8) -> String {
         })
         .collect();
     format!(
-        r#"{{"sample_volume_l": 0.05, "titrant": {{"dissolved": {{"HCl": 0.04}}}}, "points": [{}],
+        r#"{{"sample_volume_ml": 50, "titrant": {{"dissolved": {{"HCl": 0.04}}}}, "points": [{}],
             "carbonate": {carbonate}, "buffers": {buffers}}}"#,
         pairs.join(", ")
     )
@@ -426,7 +431,7 @@ fn impossible_titrant_volumes_are_refused() {
     std::fs::write(&path, "titrant_ml,ph\n0,9.0\n1,8.0\n2,7.0\n1e308,3.0\n1e308,2.9\n1e308,2.8\n").unwrap();
     let e = table_error(&["fit", "--data", path.to_str().unwrap(), "--titrant", "HCl=0.04", "--sample-ml", "50"]);
     assert!(e.contains("1e308") && e.contains("sample"), "{e}");
-    let request = r#"{"sample_volume_l": 0.05, "titrant": {"dissolved": {"HCl": 0.04}},
+    let request = r#"{"sample_volume_ml": 50, "titrant": {"dissolved": {"HCl": 0.04}},
         "points": [[0, 9.0], [1, 8.0], [2, 7.0], [1e308, 3.0], [1e308, 2.9], [1e308, 2.8]]}"#;
     let msg = json_error(&["fit", "--json"], request);
     assert!(msg.contains("1e308") && msg.contains("sample"), "{msg}");
@@ -441,7 +446,7 @@ fn volumes_out_of_order_are_refused() {
     std::fs::write(&path, "titrant_ml,ph\n0,9.0\n1,8.0\n3,6.0\n2,7.0\n4,5.0\n5,4.0\n").unwrap();
     let e = table_error(&["fit", "--data", path.to_str().unwrap(), "--titrant", "HCl=0.04", "--sample-ml", "50"]);
     assert!(e.contains("line 5") && e.contains("order"), "{e}");
-    let request = r#"{"sample_volume_l": 0.05, "titrant": {"dissolved": {"HCl": 0.04}},
+    let request = r#"{"sample_volume_ml": 50, "titrant": {"dissolved": {"HCl": 0.04}},
         "points": [[0, 9.0], [1, 8.0], [3, 6.0], [2, 7.0], [4, 5.0], [5, 4.0]]}"#;
     let msg = json_error(&["fit", "--json"], request);
     assert!(msg.contains("points[3]") && msg.contains("order"), "{msg}");

@@ -5,27 +5,25 @@
 //!
 //! What "truth" is (reference values: the recipe's ions, counted by hand in the comments below
 //! and checked against the library's own count of the recipe):
-//! - strong charge: strong cations minus strong anions of the recipe, eq/L;
-//! - carbonate: the recipe's carbonate total;
-//! - phosphate, fitted as one generic monoprotic buffer: phosphate's first proton (pKa ≈ 2.1)
-//!   is effectively strong over a titration that stays above pH 3.5 (at most about 4 % of the
-//!   phosphate holds it there, calc: 10^(2.1 − 3.5)) and its third (pKa ≈ 12.3) is not reached
-//!   below pH 11 (under 5 %, calc: 10^(11 − 12.3)), so the water behaves as if H2PO4⁻ were the
-//!   buffer's acid form and one proton per phosphate a strong anion: the effective strong charge
-//!   is (strong ions − phosphate total) and the buffer total is the phosphate total.
+//! - strong charge: strong cations minus strong anions of the recipe, eq/L (phosphate and
+//!   carbonate enter the model as their neutral acids, H3PO4 and CO2, as the library counts
+//!   them);
+//! - carbonate and phosphate: the recipe's totals, fitted as the catalogue's systems
+//!   (`--carbonate`, `--phosphate`: constants, charges and temperature functions known);
+//! - the fit is told the ionic strength of the recipe's inert salts
+//!   (`--inert-ionic-strength-mol-per-l`), as a lab would estimate it from the sample's make-up
+//!   or conductivity: the recipe's strong-ion ionic strength minus that of the fitted strong
+//!   charge, which the model carries as one monovalent ion (I = |Q| / 2).
 //!
 //! Titration ranges: the acids (0.02 mol/L HCl, 0.01 mol/L H2SO4: the same 0.02 eq/L) run down
 //! to pH 3.6–3.7, past carbonate's first step (pKa 6.35) and its end point near pH 4.5 and past
-//! phosphate's second step (pKa ≈ 7.1) and its end point near pH 4.7, while staying above pH 3.5
-//! (above); 0.02 mol/L NaOH runs up to pH 10.8–10.9, past carbonate's second step (pKa 10.3).
-//! The test checks both ends in every CSV.
+//! phosphate's second step (pKa ≈ 7.1) and its end point near pH 4.7; 0.02 mol/L NaOH runs up
+//! to pH 10.8–10.9, past carbonate's second step (pKa 10.3). The test checks both ends in every
+//! CSV.
 //!
-//! Tolerances: strong charge within 2 % and totals within 5 % (the goal of this test), except
-//! where a case states a measured limit of the fit's model and its reason (`Expect::Bias`): the
-//! fit carries the strong charge as one monovalent ion and phosphate as a buffer whose forms
-//! carry charges 0/−1, so under Davies activities their ionic strength and activity
-//! coefficients differ from the recipe's. Where the data cannot bracket a buffer's pKa
-//! (`Expect::Refused`) the fit must refuse, exit 1, instead of answering.
+//! Tolerances: strong charge within 2 % and totals within 5 % (the goal of this test). One more
+//! case shows what the inert ionic strength is for: the make-up water titrated with NaOH without
+//! it misses by a measured amount (`Expect::Bias`, with its reason).
 //!
 //! `cargo test -p phdose-host --release --test fit_roundtrip -- --nocapture` prints the table
 //! README.md shows.
@@ -42,129 +40,109 @@ struct Water {
     name: &'static str,
     recipe: &'static [(&'static str, f64)],
     carbonate: bool,
-    buffers: u8,
-    /// Hand count of the truth: effective strong charge meq/L, carbonate mmol/L, phosphate mmol/L.
-    hand: (f64, f64, f64),
+    phosphate: bool,
+    /// Hand count of the truth: strong charge meq/L, carbonate mmol/L, phosphate mmol/L, inert
+    /// ionic strength mmol/L.
+    hand: (f64, f64, f64, f64),
 }
 
 /// A make-up water from an invented well: bicarbonate with dissolved CO2, hardness and salt.
 /// Strong ions: Na⁺ 2.5 + 1.5, Ca²⁺ 2 × 1.0, Cl⁻ 2 × 1.0 + 1.5 meq/L → 2.5 meq/L; carbonate
-/// 2.5 + 0.8 = 3.3 mmol/L. pH 6.8.
+/// 2.5 + 0.8 = 3.3 mmol/L. Strong-ion ionic strength ½(4.0 + 4 × 1.0 + 3.5) = 5.75 mmol/L, of
+/// which the fitted 2.5 meq/L carry 1.25: inert 4.5 mmol/L. pH 6.8.
 const MAKE_UP: Water = Water {
     name: "make-up water",
     recipe: &[("NaHCO3", 0.0025), ("CO2", 0.0008), ("CaCl2", 0.001), ("NaCl", 0.0015)],
     carbonate: true,
-    buffers: 0,
-    hand: (2.5, 3.3, 0.0),
+    phosphate: false,
+    hand: (2.5, 3.3, 0.0, 4.5),
 };
 
 /// The rinse of an invented phosphate-dosed boiler feed line: disodium phosphate with a little
 /// monosodium phosphate and salt. Strong ions: Na⁺ 2 × 1.7 + 0.1 + 0.5, Cl⁻ 0.5 → 3.5 meq/L;
-/// phosphate 1.8 mmol/L; effective strong charge 3.5 − 1.8 = 1.7 meq/L. pH 8.3.
+/// phosphate 1.8 mmol/L. Ionic strength ½(4.0 + 0.5) = 2.25, fitted charge 1.75: inert
+/// 0.5 mmol/L. pH 8.3.
 const PHOSPHATE_RINSE: Water = Water {
     name: "phosphate-dosed feed rinse",
     recipe: &[("Na2HPO4", 0.0017), ("NaH2PO4", 0.0001), ("NaCl", 0.0005)],
     carbonate: false,
-    buffers: 1,
-    hand: (1.7, 0.0, 1.8),
+    phosphate: true,
+    hand: (3.5, 0.0, 1.8, 0.5),
 };
 
 /// An invented mixed rinse: bicarbonate and disodium phosphate with salt and some hardness.
 /// Strong ions: Na⁺ 1.5 + 2 × 0.6 + 1.0, Ca²⁺ 2 × 0.3, Cl⁻ 1.0 + 2 × 0.3 → 2.7 meq/L; carbonate
-/// 1.5 mmol/L; phosphate 0.6 mmol/L; effective strong charge 2.7 − 0.6 = 2.1 meq/L. pH 8.5.
+/// 1.5 mmol/L; phosphate 0.6 mmol/L. Ionic strength ½(3.7 + 4 × 0.3 + 1.6) = 3.25, fitted
+/// charge 1.35: inert 1.9 mmol/L. pH 8.5.
 const MIXED_RINSE: Water = Water {
     name: "mixed rinse",
     recipe: &[("NaHCO3", 0.0015), ("Na2HPO4", 0.0006), ("NaCl", 0.001), ("CaCl2", 0.0003)],
     carbonate: true,
-    buffers: 1,
-    hand: (2.1, 1.5, 0.6),
+    phosphate: true,
+    hand: (2.7, 1.5, 0.6, 1.9),
 };
 
 /// What a case must give.
 enum Expect {
     /// Accepted; strong charge within 2 %, every fitted total within 5 %.
     Recovered,
-    /// Accepted, with a measured limit of the fit's model wider than the 2 % / 5 % above, and its
-    /// reason. Relative tolerances.
-    Bias { strong: f64, carbonate: f64, buffer: f64, why: &'static str },
-    /// Refused for its quality (exit 1) with this refusal key.
-    Refused { refusal: &'static str, why: &'static str },
+    /// Accepted, outside 2 % / 5 % by a measured amount within these relative limits, for the
+    /// reason given.
+    Bias { strong: f64, totals: f64, why: &'static str },
 }
 
 struct Case {
     water: &'static Water,
     titrant: &'static str,
     max_ml: f64,
+    /// Whether the fit is told the inert ionic strength.
+    inert: bool,
     expect: Expect,
 }
 
-/// Why the make-up water's NaOH titration reads high: measured +3.0 % strong charge, +2.4 %
-/// carbonate (with ideal activities both recover exactly, and so does the same water without
-/// its calcium chloride and salt: its only strong ion is then the Na⁺ the fit models).
-const IONIC_STRENGTH: &str = "the fit carries the strong charge as one monovalent ion (ionic strength 1.25 mmol/L \
-where the recipe's salts give 5.75): carbonate's CO3²⁻ step, which only the NaOH titration sees, is then placed \
-with the wrong activity coefficients";
+/// Why the make-up water's NaOH titration reads high without the inert ionic strength:
+/// measured +3.0 % strong charge, +2.4 % carbonate (with ideal activities both recover exactly).
+const IONIC_STRENGTH: &str = "without the inert ionic strength the model's is that of the fitted strong charge \
+alone (1.25 mmol/L where the recipe's salts give 5.75): carbonate's CO3²⁻ step, which only the NaOH titration \
+sees, is then placed with the wrong activity coefficients";
 
-/// Why the mixed rinse's acid titrations split carbonate and phosphate unevenly: measured −9.0 %
-/// and −8.2 % phosphate, +4.1 % and +3.7 % carbonate, their sum within 1 % (with ideal
-/// activities −3.0 % and +1.5 %). The test checks the sum.
-const PHOSPHATE_CHARGES: &str = "phosphate's H2PO4⁻/HPO4²⁻ carry charges −1/−2 where the generic buffer's forms \
-carry 0/−1; under Davies activities the fit moves some of the phosphate to the carbonate, whose step overlaps";
+const fn case(water: &'static Water, titrant: &'static str, max_ml: f64) -> Case {
+    Case { water, titrant, max_ml, inert: true, expect: Expect::Recovered }
+}
 
-/// Why the NaOH titrations of the phosphate-bearing waters are refused: they start above
-/// phosphate's pKa (≈ 7.1) and never bracket it. Before the quality policy they were answered
-/// with exit 0: strong charge 92 % and 24 % low with standard errors of 2.5 % and 0.2 %.
-const UNBRACKETED: &str =
-    "the titration starts at pH 8.3 or 8.5, above phosphate's pKa ≈ 7.1, and sees only the tail of its step";
-
-const CASES: [Case; 9] = [
-    Case { water: &MAKE_UP, titrant: "HCl=0.02", max_ml: 7.0, expect: Expect::Recovered },
-    Case { water: &MAKE_UP, titrant: "H2SO4=0.01", max_ml: 7.0, expect: Expect::Recovered },
+const CASES: [Case; 10] = [
+    case(&MAKE_UP, "HCl=0.02", 7.0),
+    case(&MAKE_UP, "H2SO4=0.01", 7.0),
+    case(&MAKE_UP, "NaOH=0.02", 11.0),
+    case(&PHOSPHATE_RINSE, "HCl=0.02", 5.0),
+    case(&PHOSPHATE_RINSE, "H2SO4=0.01", 5.0),
+    case(&PHOSPHATE_RINSE, "NaOH=0.02", 2.5),
+    case(&MIXED_RINSE, "HCl=0.02", 6.0),
+    case(&MIXED_RINSE, "H2SO4=0.01", 6.0),
+    case(&MIXED_RINSE, "NaOH=0.02", 6.0),
     Case {
         water: &MAKE_UP,
         titrant: "NaOH=0.02",
         max_ml: 11.0,
-        expect: Expect::Bias { strong: 0.04, carbonate: 0.05, buffer: 0.05, why: IONIC_STRENGTH },
-    },
-    Case { water: &PHOSPHATE_RINSE, titrant: "HCl=0.02", max_ml: 5.0, expect: Expect::Recovered },
-    Case { water: &PHOSPHATE_RINSE, titrant: "H2SO4=0.01", max_ml: 5.0, expect: Expect::Recovered },
-    Case {
-        water: &PHOSPHATE_RINSE,
-        titrant: "NaOH=0.02",
-        max_ml: 2.5,
-        expect: Expect::Refused { refusal: "pka outside data", why: UNBRACKETED },
-    },
-    Case {
-        water: &MIXED_RINSE,
-        titrant: "HCl=0.02",
-        max_ml: 6.0,
-        expect: Expect::Bias { strong: 0.02, carbonate: 0.05, buffer: 0.10, why: PHOSPHATE_CHARGES },
-    },
-    Case {
-        water: &MIXED_RINSE,
-        titrant: "H2SO4=0.01",
-        max_ml: 6.0,
-        expect: Expect::Bias { strong: 0.02, carbonate: 0.05, buffer: 0.10, why: PHOSPHATE_CHARGES },
-    },
-    Case {
-        water: &MIXED_RINSE,
-        titrant: "NaOH=0.02",
-        max_ml: 6.0,
-        expect: Expect::Refused { refusal: "pka outside data", why: UNBRACKETED },
+        inert: false,
+        expect: Expect::Bias { strong: 0.04, totals: 0.05, why: IONIC_STRENGTH },
     },
 ];
 
-/// The truth of a water from the library's count of its recipe: (effective strong charge
-/// meq/L, carbonate mmol/L, phosphate mmol/L), checked against the hand count.
-fn truth(w: &Water) -> (f64, f64, f64) {
+/// The truth of a water from the library's count of its recipe: (strong charge meq/L,
+/// carbonate mmol/L, phosphate mmol/L, inert ionic strength mmol/L), checked against the hand
+/// count.
+fn truth(w: &Water) -> (f64, f64, f64, f64) {
     let mut s: Solution<f64, 8> = Solution::new(Celsius::new(25.0).unwrap(), Activity::Davies);
     for (formula, mol_per_l) in w.recipe {
         s.add_formula(formula, *mol_per_l).unwrap();
     }
-    let phosphate = s.total_of("phosphate") * 1000.0;
-    let t = (s.strong_charge_eq_per_l() * 1000.0 - phosphate, s.total_of("carbonate") * 1000.0, phosphate);
+    let q = s.strong_charge_eq_per_l();
+    let inert = s.strong_ionic_strength_mol_per_l() - 0.5 * q.abs();
+    let t = (q * 1000.0, s.total_of("carbonate") * 1000.0, s.total_of("phosphate") * 1000.0, inert * 1000.0);
     let close = |a: f64, b: f64| (a - b).abs() < 1e-9;
-    assert!(close(t.0, w.hand.0) && close(t.1, w.hand.1) && close(t.2, w.hand.2), "{}: {t:?} vs {:?}", w.name, w.hand);
+    let h = w.hand;
+    assert!(close(t.0, h.0) && close(t.1, h.1) && close(t.2, h.2) && close(t.3, h.3), "{}: {t:?} vs {h:?}", w.name);
     t
 }
 
@@ -178,27 +156,21 @@ fn reported(out: &str, label: &str) -> Option<(f64, f64)> {
     Some((value, se))
 }
 
-/// The pKa on the "buffer a" line.
-fn reported_pka(out: &str) -> Option<f64> {
-    let line = out.lines().find(|l| l.starts_with("buffer a"))?;
-    line.split("pKa ").nth(1)?.split_whitespace().next()?.parse().ok()
-}
-
 fn pct(fitted: f64, truth: f64) -> f64 {
     100.0 * (fitted / truth - 1.0)
 }
 
 #[test]
-fn every_curve_fits_back_to_its_composition_or_is_refused() {
+fn every_curve_fits_back_to_its_composition() {
     let dir = scratch("fit-roundtrip");
     let mut table = vec![
-        "| water | titrant | data pH | strong charge meq/L: true → fitted | carbonate mmol/L | phosphate (buffer) mmol/L, pKa | RMS pH | verdict |".to_owned(),
-        "|---|---|---|---|---|---|---|---|".to_owned(),
+        "| water | titrant | data pH | strong charge meq/L: true → fitted | carbonate mmol/L | phosphate mmol/L | inert I given | RMS pH | verdict |".to_owned(),
+        "|---|---|---|---|---|---|---|---|---|".to_owned(),
     ];
     let mut notes: Vec<String> = Vec::new();
     for (k, case) in CASES.iter().enumerate() {
         let w = case.water;
-        let (strong, carbonate, phosphate) = truth(w);
+        let (strong, carbonate, phosphate, inert_mmol) = truth(w);
         let csv = dir.join(format!("case{k}.csv"));
         let csv = csv.to_str().unwrap();
         let mut curve: Vec<&str> = vec!["curve"];
@@ -219,102 +191,70 @@ fn every_curve_fits_back_to_its_composition_or_is_refused() {
             assert!((3.5..=3.7).contains(&lo), "{} with {}: ends at pH {lo}", w.name, case.titrant);
         }
 
+        let inert = (inert_mmol / 1000.0).to_string();
         let mut fit = vec!["fit", "--data", csv, "--titrant", case.titrant, "--sample-ml", "50"];
         if w.carbonate {
             fit.push("--carbonate");
         }
-        if w.buffers == 1 {
-            fit.extend(["--buffers", "1"]);
+        if w.phosphate {
+            fit.push("--phosphate");
+        }
+        if case.inert {
+            fit.extend(["--inert-ionic-strength-mol-per-l", &inert]);
         }
         let r = run(&fit, "");
         assert!(r.stderr.is_empty(), "{fit:?}: {}", r.stderr);
         let out = &r.stdout;
         let q = reported(out, "strong charge");
         let c = reported(out, "carbonate");
-        let b = reported(out, "buffer a");
+        let p = reported(out, "phosphate");
         let rms = reported(out, "residual RMS").map(|v| v.0);
         let quality = out.lines().find(|l| l.starts_with("quality")).unwrap_or_else(|| panic!("no quality: {out}"));
+        assert_eq!(r.code, 0, "{} with {}: {out}", w.name, case.titrant);
+        assert!(quality.contains("accepted"), "{quality}");
 
-        let (q_tol, c_tol, b_tol) = match &case.expect {
-            Expect::Recovered => (Some(0.02), 0.05, 0.05),
-            Expect::Bias { strong, carbonate, buffer, why } => {
-                notes.push(format!("{} with {}: {why}.", w.name, case.titrant));
-                (Some(*strong), *carbonate, *buffer)
-            }
-            Expect::Refused { refusal, why } => {
-                assert_eq!(r.code, 1, "{} with {}: expected a refusal: {out}", w.name, case.titrant);
-                assert!(out.starts_with("FIT REFUSED: ") && quality.contains(refusal), "{out}");
-                notes.push(format!("{} with {}: refused, {why}.", w.name, case.titrant));
-                (None, 0.0, 0.0)
+        let (q_tol, t_tol) = match &case.expect {
+            Expect::Recovered => (0.02, 0.05),
+            Expect::Bias { strong, totals, why } => {
+                notes.push(format!("{} with {}, no inert ionic strength given: {why}.", w.name, case.titrant));
+                (*strong, *totals)
             }
         };
         let cell = |fitted: Option<(f64, f64)>, truth: f64| match fitted {
             Some((v, se)) => format!("{truth:.3} → {v:.3} ± {se:.3} ({:+.1} %)", pct(v, truth)),
             None => format!("{truth:.3} → —"),
         };
-        let verdict = match (&case.expect, q_tol) {
-            (Expect::Refused { refusal, .. }, _) => format!("refused ({refusal}), exit 1"),
-            (Expect::Bias { .. }, Some(t)) => {
-                format!("accepted; outside 2 % / 5 % (limit {:.0} % / {:.0} %)", t * 100.0, c_tol.max(b_tol) * 100.0)
-            }
-            _ => "accepted, within 2 % / 5 %".to_owned(),
+        let verdict = match case.expect {
+            Expect::Bias { .. } => format!("accepted; outside 2 % / 5 % (limit {:.0} %)", q_tol * 100.0),
+            Expect::Recovered => "accepted, within 2 % / 5 %".to_owned(),
         };
         table.push(format!(
-            "| {} | {} | {:.2}–{:.2} | {} | {} | {} | {} | {verdict} |",
+            "| {} | {} | {:.2}–{:.2} | {} | {} | {} | {} | {} | {verdict} |",
             w.name,
             case.titrant.replace('=', " "),
             lo,
             hi,
             cell(q, strong),
             if w.carbonate { cell(c, carbonate) } else { "—".to_owned() },
-            if w.buffers > 0 {
-                format!(
-                    "{}{}",
-                    cell(b, phosphate),
-                    reported_pka(out).map(|p| format!(", pKa {p:.2}")).unwrap_or_default()
-                )
-            } else {
-                "—".to_owned()
-            },
-            rms.map(|v| format!("{v:.3}")).unwrap_or_else(|| "—".to_owned()),
+            if w.phosphate { cell(p, phosphate) } else { "—".to_owned() },
+            if case.inert { format!("{inert_mmol:.2} mmol/L") } else { "none".to_owned() },
+            rms.map(|v| format!("{v:.1e}")).unwrap_or_else(|| "—".to_owned()),
         ));
 
-        let Some(q_tol) = q_tol else { continue };
-        assert_eq!(r.code, 0, "{} with {}: {out}", w.name, case.titrant);
-        assert!(quality.contains("accepted"), "{quality}");
-        let (qv, _) = q.unwrap();
-        assert!((qv / strong - 1.0).abs() <= q_tol, "{} with {}: strong charge {qv} vs {strong}", w.name, case.titrant);
-        if w.carbonate {
-            let (cv, _) = c.unwrap();
-            assert!(
-                (cv / carbonate - 1.0).abs() <= c_tol,
-                "{} with {}: carbonate {cv} vs {carbonate}",
-                w.name,
-                case.titrant
-            );
-        }
-        if w.buffers > 0 {
-            let (bv, _) = b.unwrap();
-            assert!(
-                (bv / phosphate - 1.0).abs() <= b_tol,
-                "{} with {}: buffer {bv} vs {phosphate}",
-                w.name,
-                case.titrant
-            );
-        }
+        let off = |fitted: Option<(f64, f64)>, truth: f64| (fitted.unwrap().0 / truth - 1.0).abs();
+        let q_off = off(q, strong);
+        let c_off = if w.carbonate { off(c, carbonate) } else { 0.0 };
+        let p_off = if w.phosphate { off(p, phosphate) } else { 0.0 };
+        let case_name = format!("{} with {}", w.name, case.titrant);
+        assert!(q_off <= q_tol, "{case_name}: strong charge {q:?} vs {strong}");
+        assert!(
+            c_off <= t_tol && p_off <= t_tol,
+            "{case_name}: carbonate {c:?} vs {carbonate}, phosphate {p:?} vs {phosphate}"
+        );
         if let Expect::Bias { .. } = case.expect {
             // A stated limit is a real miss of 2 % / 5 %, not slack: if the fit now recovers the
-            // case, move it to `Recovered` (and update README's table).
-            let (qv, cv, bv) = (qv, c.map_or(carbonate, |v| v.0), b.map_or(phosphate, |v| v.0));
-            let within = (qv / strong - 1.0).abs() <= 0.02
-                && (!w.carbonate || (cv / carbonate - 1.0).abs() <= 0.05)
-                && (w.buffers == 0 || (bv / phosphate - 1.0).abs() <= 0.05);
-            assert!(!within, "{} with {}: now within 2 % / 5 %", w.name, case.titrant);
-            if w.carbonate && w.buffers > 0 {
-                // The split moves between carbonate and phosphate: their sum is recovered.
-                let sum = cv + bv;
-                assert!((sum / (carbonate + phosphate) - 1.0).abs() <= 0.01, "sum {sum}");
-            }
+            // case without the inert ionic strength, the option's reason is gone.
+            assert!(q_off > 0.02 || c_off > 0.05, "{case_name}: now within 2 % / 5 %");
         }
     }
     println!("{}", table.join("\n"));
@@ -322,4 +262,23 @@ fn every_curve_fits_back_to_its_composition_or_is_refused() {
     for n in notes {
         println!("- {n}");
     }
+}
+
+/// The phosphate rinse titrated with NaOH starts at pH 8.3, above phosphate's second pKa
+/// (≈ 7.1): fitted as a generic buffer (`--buffers 1`, pKa unknown) the data cannot bracket
+/// the buffer's pKa, and the fit is refused (exit 1) instead of answering 92 % low as it did
+/// before the quality policy; with `--phosphate` (pKa known) it fits (table above).
+#[test]
+fn an_unbracketed_generic_buffer_is_refused() {
+    let dir = scratch("fit-roundtrip-unbracketed");
+    let csv = dir.join("rinse.csv");
+    let csv = csv.to_str().unwrap();
+    let recipe: Vec<String> = PHOSPHATE_RINSE.recipe.iter().map(|(f, c)| format!("{f}={c}")).collect();
+    let mut curve: Vec<&str> = vec!["curve"];
+    curve.extend(recipe.iter().map(String::as_str));
+    curve.extend(["--sample-ml", "50", "--titrant", "NaOH=0.02", "--max-titrant-ml", "2.5", "--csv", csv]);
+    assert_eq!(run(&curve, "").code, 0);
+    let r = run(&["fit", "--data", csv, "--titrant", "NaOH=0.02", "--sample-ml", "50", "--buffers", "1"], "");
+    assert_eq!(r.code, 1, "{}", r.stdout);
+    assert!(r.stdout.starts_with("FIT REFUSED: ") && r.stdout.contains("pka outside data"), "{}", r.stdout);
 }

@@ -2,9 +2,13 @@
 //! influent (added reagent vs measured pH) by bounded Levenberg–Marquardt with fixed-size
 //! matrices.
 //!
-//! Unknowns (up to [`MAX_PARAMETERS`]): the net strong-ion charge (always), the carbonate total
-//! (optional) and up to two generic monoprotic weak buffers (total and pKa each). Totals are
-//! fitted as log10 (so they stay positive), pKa within [`PKA_RANGE`]. Residuals are in pH.
+//! Unknowns (up to [`MAX_PARAMETERS`]): the net strong-ion charge (always), the carbonate and
+//! phosphate totals (optional; the catalogue's systems, with their own constants, charges and
+//! temperature functions) and up to two generic monoprotic weak buffers (total and pKa each).
+//! Totals are fitted as log10 (so they stay positive), pKa within [`PKA_RANGE`]. Residuals are in
+//! pH. The sample's inert salts (what carries ionic strength but no net charge and no buffering)
+//! can be given as [`FitSpec::inert_ionic_strength_mol_per_l`], so that the activity
+//! coefficients of the model are the sample's.
 //!
 //! Quality policy: [`fit`] returns a composition only when the lab points are physically
 //! possible (see [`PointProblem`]) and the fit passes every check below; otherwise a typed
@@ -26,10 +30,13 @@ use crate::invariant::{at, at2, set, set2};
 use crate::real::Real;
 use crate::units::Celsius;
 
-/// Most parameters: strong charge, carbonate, two buffers × (total, pKa).
-pub const MAX_PARAMETERS: usize = 6;
-/// Most Levenberg–Marquardt iterations.
-pub const MAX_FIT_ITERATIONS: u32 = 60;
+/// Most parameters: strong charge, carbonate, phosphate, two buffers × (total, pKa).
+pub const MAX_PARAMETERS: usize = 7;
+/// Most Levenberg–Marquardt iterations. Noiseless curves of this crate fitted back with the
+/// model that made them take up to 95 (the residual falls geometrically to round-off before no
+/// step improves it; `host/tests/fit_roundtrip.rs`); lab data, whose residual levels off at
+/// their noise, far fewer.
+pub const MAX_FIT_ITERATIONS: u32 = 200;
 /// Allowed range of a fitted buffer's pKa.
 pub const PKA_RANGE: (f64, f64) = (1.0, 13.0);
 /// Allowed range of log10(total / (mol/L)) of a fitted total.
@@ -80,9 +87,13 @@ pub const MEASURED_PH_RANGE: (f64, f64) = (0.0, 14.0);
 /// The generic buffer systems a fit may use (monoprotic HA / A⁻, pKa set by the fit).
 pub const BUFFER_KEYS: [&str; 2] = ["fitted-buffer-a", "fitted-buffer-b"];
 
-/// Acid–base systems an [`Effective`] composition can hold: carbonate and the buffers of
-/// [`BUFFER_KEYS`]. [`Effective::solution`] needs at least this capacity.
-pub const FITTED_SYSTEMS: usize = 1 + BUFFER_KEYS.len();
+/// Acid–base systems an [`Effective`] composition can hold: carbonate, phosphate and the buffers
+/// of [`BUFFER_KEYS`]. [`Effective::solution`] needs at least this capacity.
+pub const FITTED_SYSTEMS: usize = 2 + BUFFER_KEYS.len();
+
+/// Largest [`FitSpec::inert_ionic_strength_mol_per_l`], mol/L: the Davies equation's range
+/// (about 0.5 mol/L).
+pub const MAX_INERT_IONIC_STRENGTH_MOL_PER_L: f64 = 0.5;
 
 /// What to fit.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -90,6 +101,14 @@ pub const FITTED_SYSTEMS: usize = 1 + BUFFER_KEYS.len();
 pub struct FitSpec<R: Real> {
     /// Fit a carbonate total.
     pub carbonate: bool,
+    /// Fit a phosphate total (the catalogue's triprotic system, its pKa and charges known).
+    pub phosphate: bool,
+    /// Ionic strength of the sample's inert salts, mol/L (0 to
+    /// [`MAX_INERT_IONIC_STRENGTH_MOL_PER_L`]): salts that carry no net strong charge and do not
+    /// buffer (sodium chloride, calcium chloride…), known from the sample's make-up or estimated
+    /// from its conductivity. The model adds it as a 1:1 salt; 0 leaves the ionic strength to
+    /// the fitted composition alone. Ignored with ideal activities.
+    pub inert_ionic_strength_mol_per_l: R,
     /// Number of generic buffers to fit (0–2).
     pub buffers: u8,
     /// Sample volume titrated, L.
@@ -108,6 +127,8 @@ pub struct Effective<R: Real> {
     pub strong_charge_eq_per_l: R,
     /// Carbonate total, mol/L (0 when not fitted).
     pub carbonate_mol_per_l: R,
+    /// Phosphate total, mol/L (0 when not fitted).
+    pub phosphate_mol_per_l: R,
     /// Generic buffers: (total mol/L, pKa at 25 °C); unused entries are (0, 7).
     pub buffers: [(R, R); 2],
 }
@@ -122,17 +143,27 @@ impl<R: Real> Effective<R> {
     /// use phdose::chem::{Activity, Solution};
     /// use phdose::titration::fit::Effective;
     /// use phdose::units::Celsius;
-    /// let e = Effective { strong_charge_eq_per_l: 1e-3, carbonate_mol_per_l: 1e-3, buffers: [(1e-4, 7.0), (1e-4, 9.0)] };
-    /// let s: Solution<f64, 3> = e.solution(Celsius::new(20.0).unwrap(), Activity::Ideal).unwrap();
-    /// assert_eq!(s.components().len(), 3);
+    /// let e = Effective {
+    ///     strong_charge_eq_per_l: 1e-3,
+    ///     carbonate_mol_per_l: 1e-3,
+    ///     phosphate_mol_per_l: 2e-4,
+    ///     buffers: [(1e-4, 7.0), (1e-4, 9.0)],
+    /// };
+    /// let s: Solution<f64, 4> = e.solution(Celsius::new(20.0).unwrap(), Activity::Ideal).unwrap();
+    /// assert_eq!(s.components().len(), 4);
     /// ```
     /// Too small a capacity does not compile:
     /// ```compile_fail
     /// use phdose::chem::{Activity, Solution};
     /// use phdose::titration::fit::Effective;
     /// use phdose::units::Celsius;
-    /// let e = Effective { strong_charge_eq_per_l: 1e-3, carbonate_mol_per_l: 1e-3, buffers: [(1e-4, 7.0), (1e-4, 9.0)] };
-    /// let s: Solution<f64, 2> = e.solution(Celsius::new(20.0).unwrap(), Activity::Ideal).unwrap();
+    /// let e = Effective {
+    ///     strong_charge_eq_per_l: 1e-3,
+    ///     carbonate_mol_per_l: 1e-3,
+    ///     phosphate_mol_per_l: 0.0,
+    ///     buffers: [(1e-4, 7.0), (1e-4, 9.0)],
+    /// };
+    /// let s: Solution<f64, 3> = e.solution(Celsius::new(20.0).unwrap(), Activity::Ideal).unwrap();
     /// ```
     ///
     /// # Errors
@@ -146,7 +177,12 @@ impl<R: Real> Effective<R> {
         temperature: Celsius<R>,
         activity: Activity,
     ) -> Result<Solution<R, N>, CompositionError> {
-        const { assert!(N >= FITTED_SYSTEMS, "an effective composition needs room for carbonate and both buffers") };
+        const {
+            assert!(
+                N >= FITTED_SYSTEMS,
+                "an effective composition needs room for carbonate, phosphate and both buffers"
+            )
+        };
         let mut s = Solution::new(temperature, activity);
         let q = self.strong_charge_eq_per_l;
         if q >= R::ZERO {
@@ -158,6 +194,9 @@ impl<R: Real> Effective<R> {
         // `!= 0` rather than `> 0`: a NaN or negative total is refused, not left out.
         if self.carbonate_mol_per_l != R::ZERO {
             s.add_system(&catalogue::CARBONATE, self.carbonate_mol_per_l)?;
+        }
+        if self.phosphate_mol_per_l != R::ZERO {
+            s.add_system(&catalogue::PHOSPHATE, self.phosphate_mol_per_l)?;
         }
         let [(total_a, pka_a), (total_b, pka_b)] = self.buffers;
         let [system_a, system_b] = &FITTED_BUFFERS;
@@ -379,9 +418,9 @@ impl core::fmt::Display for FitError {
 impl core::error::Error for FitError {}
 
 const NAMES: [&str; MAX_PARAMETERS] =
-    ["strong charge", "carbonate", "buffer a total", "buffer a pKa", "buffer b total", "buffer b pKa"];
+    ["strong charge", "carbonate", "phosphate", "buffer a total", "buffer a pKa", "buffer b total", "buffer b pKa"];
 
-/// Parameter vector layout: [Q (meq/L), log10 C_T, log10 C_a, pKa_a, log10 C_b, pKa_b].
+/// Parameter vector layout: [Q (meq/L), log10 C_T, log10 C_P, log10 C_a, pKa_a, log10 C_b, pKa_b].
 #[derive(Clone, Copy)]
 struct Layout {
     active: [bool; MAX_PARAMETERS],
@@ -390,7 +429,7 @@ struct Layout {
 impl Layout {
     fn new<R: Real>(spec: &FitSpec<R>) -> Self {
         let b = spec.buffers.min(2);
-        Self { active: [true, spec.carbonate, b >= 1, b >= 1, b >= 2, b >= 2] }
+        Self { active: [true, spec.carbonate, spec.phosphate, b >= 1, b >= 1, b >= 2, b >= 2] }
     }
     fn count(&self) -> usize {
         self.active.iter().filter(|a| **a).count()
@@ -398,12 +437,13 @@ impl Layout {
 }
 
 fn to_effective<R: Real>(p: &[R; MAX_PARAMETERS], layout: Layout) -> Effective<R> {
-    let [q_meq, log_c, log_a, pka_a, log_b, pka_b] = *p;
-    let [_, carbonate, buffer_a, _, buffer_b, _] = layout.active;
+    let [q_meq, log_c, log_p, log_a, pka_a, log_b, pka_b] = *p;
+    let [_, carbonate, phosphate, buffer_a, _, buffer_b, _] = layout.active;
     let total = |active: bool, log: R| if active { log.exp10() } else { R::ZERO };
     Effective {
         strong_charge_eq_per_l: q_meq * R::from_f64(1e-3),
         carbonate_mol_per_l: total(carbonate, log_c),
+        phosphate_mol_per_l: total(phosphate, log_p),
         buffers: [(total(buffer_a, log_a), pka_a), (total(buffer_b, log_b), pka_b)],
     }
 }
@@ -411,14 +451,22 @@ fn to_effective<R: Real>(p: &[R; MAX_PARAMETERS], layout: Layout) -> Effective<R
 /// The model sample of parameters `p` (clamped, so always a valid composition; a failure is
 /// reported as [`FitError::ModelFailed`], never replaced by a default).
 fn model_sample<R: Real>(p: &[R; MAX_PARAMETERS], layout: Layout, spec: &FitSpec<R>) -> Result<Sample<R>, FitError> {
-    to_effective(p, layout).solution(spec.temperature, spec.activity).map_err(|_| FitError::ModelFailed)
+    let mut s: Sample<R> =
+        to_effective(p, layout).solution(spec.temperature, spec.activity).map_err(|_| FitError::ModelFailed)?;
+    let inert = spec.inert_ionic_strength_mol_per_l;
+    if inert > R::ZERO {
+        // A 1:1 salt of concentration c has ionic strength c and no net charge.
+        s.add_strong_ion(1, inert).map_err(|_| FitError::ModelFailed)?;
+        s.add_strong_ion(-1, inert).map_err(|_| FitError::ModelFailed)?;
+    }
+    Ok(s)
 }
 
 fn clamp_parameters<R: Real>(p: &mut [R; MAX_PARAMETERS]) {
     for (i, v) in p.iter_mut().enumerate() {
         let (lo, hi) = match i {
             0 => (-1000.0, 1000.0),
-            3 | 5 => PKA_RANGE,
+            4 | 6 => PKA_RANGE,
             _ => LOG_TOTAL_RANGE,
         };
         *v = v.max(R::from_f64(lo)).min(R::from_f64(hi));
@@ -547,9 +595,21 @@ pub fn fit_assessed<R: Real, const M: usize>(
     let k = layout.count();
     let vol = spec.sample_volume_l.to_f64();
     let [(start_a, start_pka_a), (start_b, start_pka_b)] = start.buffers;
-    let start_values =
-        [start.strong_charge_eq_per_l, start.carbonate_mol_per_l, start_a, start_pka_a, start_b, start_pka_b];
-    if data.len() < k + 2 || !(vol.is_finite() && vol > 0.0) || start_values.iter().any(|v| !v.is_finite()) {
+    let start_values = [
+        start.strong_charge_eq_per_l,
+        start.carbonate_mol_per_l,
+        start.phosphate_mol_per_l,
+        start_a,
+        start_pka_a,
+        start_b,
+        start_pka_b,
+    ];
+    let inert = spec.inert_ionic_strength_mol_per_l.to_f64();
+    if data.len() < k + 2
+        || !(vol.is_finite() && vol > 0.0)
+        || start_values.iter().any(|v| !v.is_finite())
+        || !(0.0..=MAX_INERT_IONIC_STRENGTH_MOL_PER_L).contains(&inert)
+    {
         return Err(FitError::InvalidData);
     }
     let data_ph = check_points(data, spec.sample_volume_l)?;
@@ -558,6 +618,7 @@ pub fn fit_assessed<R: Real, const M: usize>(
     let mut p: [R; MAX_PARAMETERS] = [
         start.strong_charge_eq_per_l * R::from_f64(1000.0),
         log_or(start.carbonate_mol_per_l, -3.0),
+        log_or(start.phosphate_mol_per_l, -3.5),
         log_or(start_a, -3.5),
         start_pka_a,
         log_or(start_b, -3.5),
@@ -637,15 +698,16 @@ pub fn fit_assessed<R: Real, const M: usize>(
     }
     let eff = to_effective(&p, layout);
     let ln10 = R::LN_10;
-    let [se_q, se_c, se_a, se_pka_a, se_b, se_pka_b] = se;
+    let [se_q, se_c, se_p, se_a, se_pka_a, se_b, se_pka_b] = se;
     let [(total_a, _), (total_b, _)] = eff.buffers;
     let standard_errors = Effective {
         strong_charge_eq_per_l: se_q * R::from_f64(1e-3),
         carbonate_mol_per_l: eff.carbonate_mol_per_l * ln10 * se_c,
+        phosphate_mol_per_l: eff.phosphate_mol_per_l * ln10 * se_p,
         buffers: [(total_a * ln10 * se_a, se_pka_a), (total_b * ln10 * se_b, se_pka_b)],
     };
     let rms_ph = (rss / R::from_f64(f64::from(points))).sqrt();
-    let [_, _, _, fitted_a, _, fitted_b] = layout.active;
+    let [_, _, _, _, fitted_a, _, fitted_b] = layout.active;
     let [(_, pka_a), (_, pka_b)] = eff.buffers;
     let pkas = [fitted_a.then_some(pka_a), fitted_b.then_some(pka_b)];
     Ok(FitResult {
@@ -807,6 +869,8 @@ mod tests {
     fn spec(buffers: u8, carbonate: bool) -> FitSpec<f64> {
         FitSpec {
             carbonate,
+            phosphate: false,
+            inert_ionic_strength_mol_per_l: 0.0,
             buffers,
             sample_volume_l: 0.1,
             temperature: Celsius::new(20.0).unwrap(),
@@ -839,6 +903,7 @@ mod tests {
         let truth = Effective {
             strong_charge_eq_per_l: -2.0e-3,
             carbonate_mol_per_l: 1.5e-3,
+            phosphate_mol_per_l: 0.0,
             buffers: [(1.0e-3, 7.0), (0.0, 7.0)],
         };
         // Noise: normal, σ = 0.01 pH (a good lab meter). Tolerances: strong charge ±5 %,
@@ -847,6 +912,7 @@ mod tests {
         let start = Effective {
             strong_charge_eq_per_l: -1.0e-3,
             carbonate_mol_per_l: 1e-3,
+            phosphate_mol_per_l: 0.0,
             buffers: [(5e-4, 8.0), (0.0, 7.0)],
         };
         let r = fit(&spec(1, true), &caustic(), &data, &start).unwrap();
@@ -870,6 +936,7 @@ mod tests {
         let e = Effective {
             strong_charge_eq_per_l: -2.0e-3,
             carbonate_mol_per_l: 1.5e-3,
+            phosphate_mol_per_l: 0.0,
             buffers: [(1.0e-3, 7.0), (2.0e-4, 9.5)],
         };
         let s: Solution<f64, FITTED_SYSTEMS> = e.solution(t20(), Activity::Ideal).unwrap();
@@ -879,15 +946,25 @@ mod tests {
         assert_eq!(s.total_of(BUFFER_KEYS[1]), 2.0e-4);
         assert_eq!(s.component_pka(2, 1), Some(9.5));
         // Unused entries are left out.
-        let strong_only = Effective { carbonate_mol_per_l: 0.0, buffers: [(0.0, 7.0), (0.0, f64::NAN)], ..e };
-        assert_eq!(strong_only.solution::<3>(t20(), Activity::Ideal).unwrap().components().len(), 0);
+        let strong_only = Effective {
+            carbonate_mol_per_l: 0.0,
+            phosphate_mol_per_l: 0.0,
+            buffers: [(0.0, 7.0), (0.0, f64::NAN)],
+            ..e
+        };
+        assert_eq!(strong_only.solution::<FITTED_SYSTEMS>(t20(), Activity::Ideal).unwrap().components().len(), 0);
     }
 
     #[test]
     fn effective_solution_refuses_values_it_used_to_drop() {
-        let ok =
-            Effective { strong_charge_eq_per_l: 1e-3, carbonate_mol_per_l: 1e-3, buffers: [(1e-4, 7.0), (0.0, 7.0)] };
-        let refused = |e: Effective<f64>| e.solution::<3>(t20(), Activity::Ideal).map(|s| s.components().len());
+        let ok = Effective {
+            strong_charge_eq_per_l: 1e-3,
+            carbonate_mol_per_l: 1e-3,
+            phosphate_mol_per_l: 0.0,
+            buffers: [(1e-4, 7.0), (0.0, 7.0)],
+        };
+        let refused =
+            |e: Effective<f64>| e.solution::<FITTED_SYSTEMS>(t20(), Activity::Ideal).map(|s| s.components().len());
         assert_eq!(refused(ok), Ok(2));
         assert_eq!(refused(Effective { strong_charge_eq_per_l: f64::NAN, ..ok }), Err(CompositionError::NonFinite));
         assert_eq!(refused(Effective { carbonate_mol_per_l: f64::NAN, ..ok }), Err(CompositionError::NonFinite));
@@ -923,6 +1000,7 @@ mod tests {
         let truth = Effective {
             strong_charge_eq_per_l: -2.0e-3,
             carbonate_mol_per_l: 1.5e-3,
+            phosphate_mol_per_l: 0.0,
             buffers: [(0.0, 7.0), (0.0, 7.0)],
         };
         let data = synthetic(&truth, 0.0, 1);
@@ -943,11 +1021,11 @@ mod tests {
         a[0][2] = 2.0;
         a[2][0] = 2.0;
         a[2][2] = 3.0;
-        let b = [2.0, 7.0, 5.0, 7.0, 7.0, 7.0];
-        let layout = Layout { active: [true, false, true, false, false, false] };
+        let b = [2.0, 7.0, 5.0, 7.0, 7.0, 7.0, 7.0];
+        let layout = Layout { active: [true, false, true, false, false, false, false] };
         let x = solve_spd(&a, &b, layout).unwrap();
         assert!((x[0] + 0.5).abs() < 1e-12 && (x[2] - 2.0).abs() < 1e-12, "{x:?}");
-        assert_eq!([x[1], x[3], x[4], x[5]], [0.0; 4]);
+        assert_eq!([x[1], x[3], x[4], x[5], x[6]], [0.0; 5]);
         // Not positive definite: refused.
         a[2][2] = 1.0;
         assert_eq!(solve_spd(&a, &b, layout), None);
@@ -971,15 +1049,27 @@ mod tests {
                 (v, sample.mix(0.05, &acid, v).unwrap().solve().unwrap().ph)
             })
             .collect();
-        let spec =
-            FitSpec { carbonate: false, buffers: 0, sample_volume_l: 0.05, temperature: t, activity: Activity::Davies };
+        let spec = FitSpec {
+            carbonate: false,
+            phosphate: false,
+            inert_ionic_strength_mol_per_l: 0.0,
+            buffers: 0,
+            sample_volume_l: 0.05,
+            temperature: t,
+            activity: Activity::Davies,
+        };
         (spec, acid, data)
     }
 
     /// The start `phdose fit` guesses for these data: strong charge from the pH 7 crossing,
     /// carbonate 1 mmol/L, one buffer 0.5 mmol/L mid-way through the data's pH range.
     fn cli_start() -> Effective<f64> {
-        Effective { strong_charge_eq_per_l: 1.02e-3, carbonate_mol_per_l: 1e-3, buffers: [(5e-4, 5.75), (0.0, 7.0)] }
+        Effective {
+            strong_charge_eq_per_l: 1.02e-3,
+            carbonate_mol_per_l: 1e-3,
+            phosphate_mol_per_l: 0.0,
+            buffers: [(5e-4, 5.75), (0.0, 7.0)],
+        }
     }
 
     #[test]
@@ -1007,7 +1097,8 @@ mod tests {
         // pH range (pKa 2.3 against data from pH 2.45) and the fit runs into the iteration cap
         // (it used to be returned).
         let (spec, acid, data) = make_up_water_titrated_with_acid();
-        let spec = FitSpec { carbonate: true, buffers: 1, ..spec };
+        let spec =
+            FitSpec { carbonate: true, phosphate: false, inert_ionic_strength_mol_per_l: 0.0, buffers: 1, ..spec };
         let r = fit(&spec, &acid, &data, &cli_start());
         assert_eq!(r.map(|r| r.points), Err(FitError::NotConverged { iterations: MAX_FIT_ITERATIONS }));
         let a = fit_assessed(&spec, &acid, &data, &cli_start()).unwrap();
@@ -1062,14 +1153,22 @@ mod tests {
         // residual, a 1e305 L point for its volume.
         let (spec, _, data) = make_up_water_titrated_with_acid();
         let t = Celsius::new(25.0_f32).unwrap();
-        let spec =
-            FitSpec { carbonate: true, buffers: 0, sample_volume_l: 0.05_f32, temperature: t, activity: spec.activity };
+        let spec = FitSpec {
+            carbonate: true,
+            phosphate: false,
+            inert_ionic_strength_mol_per_l: 0.0,
+            buffers: 0,
+            sample_volume_l: 0.05_f32,
+            temperature: t,
+            activity: spec.activity,
+        };
         let mut acid: Solution<f32, 1> = Solution::new(t, Activity::Davies);
         acid.add_formula("HCl", 0.04).unwrap();
         let data: std::vec::Vec<(f32, f32)> = data.iter().map(|&(v, ph)| (v as f32, ph as f32)).collect();
         let start = Effective {
             strong_charge_eq_per_l: 1.02e-3_f32,
             carbonate_mol_per_l: 1e-3,
+            phosphate_mol_per_l: 0.0,
             buffers: [(0.0, 7.0), (0.0, 7.0)],
         };
         let r = fit(&spec, &acid, &data, &start).unwrap();
@@ -1117,19 +1216,24 @@ mod tests {
             assert!(e.is_quality_refusal(), "{e:?}");
         }
         assert!(std::format!("{outside}").contains("9.60") && std::format!("{outside}").contains("4.00 to 9.00"));
-        assert!(std::format!("{above}").contains("0.051") && std::format!("{cap}").contains("60"));
+        assert!(std::format!("{above}").contains("0.051") && std::format!("{cap}").contains("200"));
     }
 
     #[test]
     fn refuses_parameters_the_data_cannot_see() {
         // Strong acid only, titrated to pH ~3: a second buffer with pKa far outside the data
         // range cannot be determined.
-        let truth =
-            Effective { strong_charge_eq_per_l: -8.0e-3, carbonate_mol_per_l: 0.0, buffers: [(0.0, 7.0), (0.0, 7.0)] };
+        let truth = Effective {
+            strong_charge_eq_per_l: -8.0e-3,
+            carbonate_mol_per_l: 0.0,
+            phosphate_mol_per_l: 0.0,
+            buffers: [(0.0, 7.0), (0.0, 7.0)],
+        };
         let data = synthetic(&truth, 0.005, 3);
         let start = Effective {
             strong_charge_eq_per_l: -5.0e-3,
             carbonate_mol_per_l: 0.0,
+            phosphate_mol_per_l: 0.0,
             buffers: [(1e-4, 10.5), (1e-4, 11.5)],
         };
         let r = fit(&spec(2, false), &caustic(), &data, &start);

@@ -118,6 +118,8 @@ fn titrations<R: Real>() -> Option<()> {
     }
     let spec = FitSpec {
         carbonate: true,
+        phosphate: black_box(true),
+        inert_ionic_strength_mol_per_l: r::<R>(1e-3),
         buffers: black_box(1),
         sample_volume_l: r::<R>(0.1),
         temperature: t,
@@ -126,6 +128,7 @@ fn titrations<R: Real>() -> Option<()> {
     let start = Effective {
         strong_charge_eq_per_l: r::<R>(1e-3),
         carbonate_mol_per_l: r::<R>(1e-3),
+        phosphate_mol_per_l: r::<R>(1e-4),
         buffers: [(r::<R>(1e-4), r::<R>(8.0)), (r::<R>(0.0), r::<R>(7.0))],
     };
     sink(fit::fit(&spec, &acid, &lab, &start).ok()?.rms_ph);

@@ -1,6 +1,6 @@
 //! What `fit` is asked: lab points, titrant, sample volume and which unknowns to fit.
 
-use phdose::titration::fit::{MAX_TITRANT_PER_SAMPLE, MEASURED_PH_RANGE};
+use phdose::titration::fit::{MAX_INERT_IONIC_STRENGTH_MOL_PER_L, MAX_TITRANT_PER_SAMPLE, MEASURED_PH_RANGE};
 use serde::Deserialize;
 
 use super::{Args, example};
@@ -19,7 +19,7 @@ pub const MAX_POINTS: usize = 2000;
 pub const MAX_FILE_BYTES: u64 = 1 << 20;
 
 /// Shape of the JSON request, shown when stdin is empty.
-pub const JSON_EXAMPLE: &str = r#"{"sample_volume_l": 0.1, "titrant": {"dissolved": {"NaOH": 0.05}}, "points": [[0, 2.61], [0.5, 2.68], [1.0, 2.76]], "carbonate": true, "buffers": 1, "temperature_c": 20, "activity": "davies"}"#;
+pub const JSON_EXAMPLE: &str = r#"{"sample_volume_ml": 100, "titrant": {"dissolved": {"NaOH": 0.05}}, "points": [[0, 2.61], [0.5, 2.68], [1.0, 2.76]], "carbonate": true, "phosphate": false, "buffers": 1, "inert_ionic_strength_mol_per_l": 0.002, "temperature_c": 20, "activity": "davies"}"#;
 
 /// A complete `fit` request.
 #[derive(Clone, Debug, PartialEq)]
@@ -32,22 +32,44 @@ pub struct FitInput {
     pub titrant: Reagent,
     /// (titrant mL, pH), in titrant order (non-decreasing volumes).
     pub points_ml: Vec<(f64, f64)>,
+    /// What is fitted, and the sample's inert ionic strength.
+    pub unknowns: Unknowns,
+}
+
+/// What a fit determines, and what it is told about the sample's inert salts.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Unknowns {
     /// Fit a carbonate total.
     pub carbonate: bool,
+    /// Fit a phosphate total.
+    pub phosphate: bool,
     /// Generic buffers to fit (0–2).
     pub buffers: u8,
+    /// Ionic strength of the sample's inert salts, mol/L (0 to 0.5).
+    pub inert_ionic_strength_mol_per_l: f64,
+}
+
+impl Unknowns {
+    /// Number of fitted parameters: the strong charge, each total, each buffer's total and pKa.
+    pub fn count(&self) -> usize {
+        1 + usize::from(self.carbonate) + usize::from(self.phosphate) + 2 * usize::from(self.buffers)
+    }
 }
 
 #[derive(Deserialize)]
 #[serde(deny_unknown_fields)]
 struct Request {
-    sample_volume_l: f64,
+    sample_volume_ml: f64,
     titrant: ReagentJson,
     points: Vec<(f64, f64)>,
     #[serde(default)]
     carbonate: bool,
     #[serde(default)]
+    phosphate: bool,
+    #[serde(default)]
     buffers: Option<f64>,
+    #[serde(default)]
+    inert_ionic_strength_mol_per_l: Option<f64>,
     #[serde(default)]
     temperature_c: Option<f64>,
     #[serde(default)]
@@ -179,8 +201,7 @@ impl FitInput {
         sample_volume_l: f64,
         titrant: Reagent,
         points_ml: Vec<(f64, f64)>,
-        carbonate: bool,
-        buffers: u8,
+        unknowns: Unknowns,
         label: &dyn Fn(usize) -> String,
     ) -> Result<Self, CliError> {
         volume::check_l("sample volume", sample_volume_l)?;
@@ -197,18 +218,26 @@ impl FitInput {
                 num(max_ml)
             )));
         }
-        if buffers > 2 {
-            return Err(CliError::new(format!("buffers {buffers} must be 0, 1 or 2")));
+        if unknowns.buffers > 2 {
+            return Err(CliError::new(format!("buffers {} must be 0, 1 or 2", unknowns.buffers)));
         }
-        let unknowns = 1 + usize::from(carbonate) + 2 * usize::from(buffers);
-        if points_ml.len() < unknowns + 2 {
+        let inert = unknowns.inert_ionic_strength_mol_per_l;
+        if !(0.0..=MAX_INERT_IONIC_STRENGTH_MOL_PER_L).contains(&inert) {
             return Err(CliError::new(format!(
-                "{} point(s) cannot determine {unknowns} unknown(s); give at least {}",
-                points_ml.len(),
-                unknowns + 2
+                "inert ionic strength {} mol/L must be from 0 to {MAX_INERT_IONIC_STRENGTH_MOL_PER_L} (the Davies \
+                 equation's range)",
+                num(inert)
             )));
         }
-        Ok(Self { conditions, sample_volume_l, titrant, points_ml, carbonate, buffers })
+        let count = unknowns.count();
+        if points_ml.len() < count + 2 {
+            return Err(CliError::new(format!(
+                "{} point(s) cannot determine {count} unknown(s); give at least {}",
+                points_ml.len(),
+                count + 2
+            )));
+        }
+        Ok(Self { conditions, sample_volume_l, titrant, points_ml, unknowns })
     }
 
     /// From the JSON request text.
@@ -226,8 +255,13 @@ impl FitInput {
             check_order(&label(k), previous, *ml)?;
             previous = Some(*ml);
         }
-        let buffers = check_buffers(r.buffers.unwrap_or(0.0))?;
-        Self::new(conditions, r.sample_volume_l, titrant, r.points, r.carbonate, buffers, &label)
+        let unknowns = Unknowns {
+            carbonate: r.carbonate,
+            phosphate: r.phosphate,
+            buffers: check_buffers(r.buffers.unwrap_or(0.0))?,
+            inert_ionic_strength_mol_per_l: r.inert_ionic_strength_mol_per_l.unwrap_or(0.0),
+        };
+        Self::new(conditions, r.sample_volume_ml / 1000.0, titrant, r.points, unknowns, &label)
     }
 
     /// The built-in example; `buffers` overrides its buffer count.
@@ -237,8 +271,9 @@ impl FitInput {
         let csv = parse_csv(example::DATA, "fit-example.csv")?;
         let buffers = buffers.map(check_buffers).transpose()?.unwrap_or(example::BUFFERS);
         let label = |k: usize| format!("fit-example.csv line {}", csv.lines.get(k).copied().unwrap_or(0));
-        let (sample_l, carbonate) = (example::SAMPLE_ML / 1000.0, example::CARBONATE);
-        Self::new(conditions, sample_l, titrant, csv.points_ml.clone(), carbonate, buffers, &label)
+        let unknowns =
+            Unknowns { carbonate: example::CARBONATE, phosphate: false, buffers, inert_ionic_strength_mol_per_l: 0.0 };
+        Self::new(conditions, example::SAMPLE_ML / 1000.0, titrant, csv.points_ml.clone(), unknowns, &label)
     }
 
     /// From the command line.
@@ -260,7 +295,13 @@ impl FitInput {
         let buffers = a.buffers.map(check_buffers).transpose()?.unwrap_or(0);
         let conditions = Conditions::from_args(a.conditions, None)?;
         let label = |k: usize| format!("{path} line {}", csv.lines.get(k).copied().unwrap_or(0));
-        Self::new(conditions, sample_ml / 1000.0, titrant, csv.points_ml.clone(), a.carbonate, buffers, &label)
+        let unknowns = Unknowns {
+            carbonate: a.carbonate,
+            phosphate: a.phosphate,
+            buffers,
+            inert_ionic_strength_mol_per_l: a.inert_ionic_strength_mol_per_l.unwrap_or(0.0),
+        };
+        Self::new(conditions, sample_ml / 1000.0, titrant, csv.points_ml.clone(), unknowns, &label)
     }
 }
 
@@ -311,7 +352,7 @@ mod tests {
     #[test]
     fn example_loads() {
         let e = FitInput::example(None).unwrap();
-        assert!(e.points_ml.len() >= 20 && e.carbonate && e.buffers == 1);
+        assert!(e.points_ml.len() >= 20 && e.unknowns.carbonate && e.unknowns.buffers == 1);
         assert!(FitInput::example(Some(3.0)).is_err());
     }
 }

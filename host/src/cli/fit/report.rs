@@ -12,11 +12,13 @@ use crate::cli::CliError;
 use crate::cli::format::{fixed, sig};
 use crate::cli::reagent::ReagentSolution;
 
-/// Systems the fit's own model sample holds (`phdose::titration::fit` uses `Solution<_, 4>`):
+/// Systems the fit's own model sample holds (`phdose::titration::fit` uses `Solution<_, 6>`):
 /// the fitted systems plus the titrant's must fit in it.
-pub const FIT_MODEL_CAPACITY: usize = 4;
+pub const FIT_MODEL_CAPACITY: usize = 6;
 /// Starting carbonate total, mol/L.
 pub const START_CARBONATE_MOL_PER_L: f64 = 1e-3;
+/// Starting phosphate total, mol/L.
+pub const START_PHOSPHATE_MOL_PER_L: f64 = 3e-4;
 /// Starting total of each buffer, mol/L.
 pub const START_BUFFER_MOL_PER_L: f64 = 5e-4;
 /// Points of the fitted model curve drawn in the plot.
@@ -106,6 +108,22 @@ pub fn crossing_ml(points_ml: &[(f64, f64)], ph: f64) -> Option<f64> {
 /// The documented starting guess (see `phdose help fit`).
 pub fn guess(input: &FitInput, titrant: &ReagentSolution) -> Start {
     let v0 = input.sample_volume_l;
+    let u = input.unknowns;
+    let (lo, hi) = input.points_ml.iter().fold((14.0f64, 0.0f64), |(a, b), (_, p)| (a.min(*p), b.max(*p)));
+    let spread = |k: f64, of: f64| (lo + (hi - lo) * k / of).clamp(PKA_RANGE.0, PKA_RANGE.1);
+    let buffers = match u.buffers {
+        0 => [(0.0, 7.0), (0.0, 7.0)],
+        1 => [(START_BUFFER_MOL_PER_L, spread(1.0, 2.0)), (0.0, 7.0)],
+        _ => [(START_BUFFER_MOL_PER_L, spread(1.0, 3.0)), (START_BUFFER_MOL_PER_L, spread(2.0, 3.0))],
+    };
+    let carbonate = if u.carbonate { START_CARBONATE_MOL_PER_L } else { 0.0 };
+    let phosphate = if u.phosphate { START_PHOSPHATE_MOL_PER_L } else { 0.0 };
+    let mut effective = Effective {
+        strong_charge_eq_per_l: 0.0,
+        carbonate_mol_per_l: carbonate,
+        phosphate_mol_per_l: phosphate,
+        buffers,
+    };
     // Sulfuric acid counts with both protons (see `strong_equivalents_eq_per_l`).
     let ct = strong_equivalents_eq_per_l(titrant);
     let (strong, basis) = match crossing_ml(&input.points_ml, 7.0) {
@@ -113,27 +131,37 @@ pub fn guess(input: &FitInput, titrant: &ReagentSolution) -> Start {
         None => {
             let (ml, ph) = input.points_ml.first().copied().unwrap_or((0.0, 7.0));
             let v = ml / 1000.0;
-            let pkw = titrant.pkw();
-            let (h, oh) = (10f64.powf(-ph), 10f64.powf(ph - pkw));
-            (
-                ((v0 + v) * (oh - h) - ct * v) / v0,
-                format!(
-                    "from the first point (pH {} at {} mL) taken as strong ions and water only",
-                    fixed(ph, 2),
-                    sig(ml, 4)
-                ),
-            )
+            let basis = format!(
+                "from the charge balance at the first point (pH {} at {} mL) with the starting totals",
+                fixed(ph, 2),
+                sig(ml, 4)
+            );
+            (first_point_strong_charge(input, titrant, &effective, v, ph), basis)
         }
     };
-    let (lo, hi) = input.points_ml.iter().fold((14.0f64, 0.0f64), |(a, b), (_, p)| (a.min(*p), b.max(*p)));
-    let spread = |k: f64, of: f64| (lo + (hi - lo) * k / of).clamp(PKA_RANGE.0, PKA_RANGE.1);
-    let buffers = match input.buffers {
-        0 => [(0.0, 7.0), (0.0, 7.0)],
-        1 => [(START_BUFFER_MOL_PER_L, spread(1.0, 2.0)), (0.0, 7.0)],
-        _ => [(START_BUFFER_MOL_PER_L, spread(1.0, 3.0)), (START_BUFFER_MOL_PER_L, spread(2.0, 3.0))],
-    };
-    let carbonate = if input.carbonate { START_CARBONATE_MOL_PER_L } else { 0.0 };
-    Start { effective: Effective { strong_charge_eq_per_l: strong, carbonate_mol_per_l: carbonate, buffers }, basis }
+    effective.strong_charge_eq_per_l = strong;
+    Start { effective, basis }
+}
+
+/// The strong charge (eq/L of sample) that balances the charges of the starting composition
+/// (without strong ions) mixed with `v` L of titrant at pH `ph`: the mixture's charge excess is
+/// linear in the sample's strong charge, which mixing dilutes by v0 / (v0 + v). Ideal activities
+/// (a start needs no more); with no systems it is the water-only balance.
+fn first_point_strong_charge(
+    input: &FitInput,
+    titrant: &ReagentSolution,
+    start: &Effective<f64>,
+    v: f64,
+    ph: f64,
+) -> f64 {
+    let v0 = input.sample_volume_l;
+    let c = input.conditions;
+    let sample: Result<Solution<f64, 8>, _> = start.solution(c.temperature, phdose::chem::Activity::Ideal);
+    let mixed = sample.and_then(|s| s.mix(v0, titrant, v));
+    match mixed {
+        Ok(m) => -m.charge_excess_eq_per_l(ph, 0.0) * (v0 + v) / v0,
+        Err(_) => 0.0,
+    }
 }
 
 /// An error that is not a quality refusal: bad input or a model failure (exit 2).
@@ -145,8 +173,10 @@ fn input_error(e: FitError) -> CliError {
 pub fn compute(input: FitInput) -> Result<FitReport, CliError> {
     let c = input.conditions;
     let titrant: ReagentSolution = input.titrant.solution(c, "titrant")?;
-    let fitted = usize::from(input.carbonate) + usize::from(input.buffers);
-    let extra = titrant.components().iter().filter(|k| !(input.carbonate && k.system.key == "carbonate")).count();
+    let u = input.unknowns;
+    let fitted = usize::from(u.carbonate) + usize::from(u.phosphate) + usize::from(u.buffers);
+    let named = |key: &str| (u.carbonate && key == "carbonate") || (u.phosphate && key == "phosphate");
+    let extra = titrant.components().iter().filter(|k| !named(k.system.key)).count();
     if fitted + extra > FIT_MODEL_CAPACITY {
         return Err(CliError::new(format!(
             "titrant: its {extra} acid-base system(s) plus the {fitted} fitted one(s) exceed the fit model's \
@@ -154,8 +184,10 @@ pub fn compute(input: FitInput) -> Result<FitReport, CliError> {
         )));
     }
     let spec = FitSpec {
-        carbonate: input.carbonate,
-        buffers: input.buffers,
+        carbonate: u.carbonate,
+        phosphate: u.phosphate,
+        inert_ionic_strength_mol_per_l: u.inert_ionic_strength_mol_per_l,
+        buffers: u.buffers,
         sample_volume_l: input.sample_volume_l,
         temperature: c.temperature,
         activity: c.activity,
@@ -181,10 +213,14 @@ pub fn compute(input: FitInput) -> Result<FitReport, CliError> {
         if max_l <= 0.0 {
             return Ok(Vec::new());
         }
-        let sample: Solution<f64, 8> = result
-            .effective
-            .solution(c.temperature, c.activity)
-            .map_err(|e| CliError::new(format!("fitted model: {e}")))?;
+        let model_error = |e| CliError::new(format!("fitted model: {e}"));
+        let mut sample: Solution<f64, 8> = result.effective.solution(c.temperature, c.activity).map_err(model_error)?;
+        // The inert salts, as the fit's model holds them: a 1:1 salt of that ionic strength.
+        let inert = u.inert_ionic_strength_mol_per_l;
+        if inert > 0.0 {
+            sample.add_strong_ion(1, inert).map_err(model_error)?;
+            sample.add_strong_ion(-1, inert).map_err(model_error)?;
+        }
         let t = Titration { sample: &sample, sample_volume_l: input.sample_volume_l, titrant: &titrant };
         let mut out: FixedVec<CurvePoint<f64>, MODEL_CURVE_POINTS> = FixedVec::new();
         t.curve(max_l, &mut out).map_err(|e| CliError::new(format!("fitted model curve: {e}")))?;

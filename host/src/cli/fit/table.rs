@@ -44,6 +44,10 @@ pub fn render(r: &FitReport, title: Option<&str>, written: &[String]) -> String 
     );
     let (lo, hi) = r.data_ph_range();
     let _ = writeln!(s, "{:<LABEL$}pH {} to {}", "data", fixed(lo, 2), fixed(hi, 2));
+    let inert = i.unknowns.inert_ionic_strength_mol_per_l;
+    if inert > 0.0 {
+        let _ = writeln!(s, "{:<LABEL$}{} mol/L ionic strength of inert salts (given)", "salts", sig(inert, 3));
+    }
     let _ = writeln!(s);
     if let Some(result) = &r.result {
         values(&mut s, r, result);
@@ -58,10 +62,13 @@ pub fn render(r: &FitReport, title: Option<&str>, written: &[String]) -> String 
         r.start.basis
     );
     let mut rest = Vec::new();
-    if i.carbonate {
+    if i.unknowns.carbonate {
         rest.push(format!("carbonate {} mmol/L", sig(st.carbonate_mol_per_l * 1000.0, 3)));
     }
-    for (c, pka) in st.buffers.iter().take(usize::from(i.buffers)) {
+    if i.unknowns.phosphate {
+        rest.push(format!("phosphate {} mmol/L", sig(st.phosphate_mol_per_l * 1000.0, 3)));
+    }
+    for (c, pka) in st.buffers.iter().take(usize::from(i.unknowns.buffers)) {
         rest.push(format!("buffer {} mmol/L at pKa {}", sig(c * 1000.0, 3), fixed(*pka, 2)));
     }
     if !rest.is_empty() {
@@ -84,7 +91,7 @@ fn values(s: &mut String, r: &FitReport, result: &FitResult<f64>) {
     let sense = if q < 0.0 { "net strong acid" } else { "net strong base" };
     let _ =
         writeln!(s, "{:<LABEL$}{} meq/L   ({sense})", "strong charge", pm(q, se.strong_charge_eq_per_l * 1000.0, 3));
-    if i.carbonate {
+    if i.unknowns.carbonate {
         let _ = writeln!(
             s,
             "{:<LABEL$}{} mmol/L",
@@ -92,7 +99,16 @@ fn values(s: &mut String, r: &FitReport, result: &FitResult<f64>) {
             pm(e.carbonate_mol_per_l * 1000.0, se.carbonate_mol_per_l * 1000.0, 3)
         );
     }
-    for (k, ((c, pka), (sc, spka))) in e.buffers.iter().zip(se.buffers.iter()).take(usize::from(i.buffers)).enumerate()
+    if i.unknowns.phosphate {
+        let _ = writeln!(
+            s,
+            "{:<LABEL$}{} mmol/L",
+            "phosphate",
+            pm(e.phosphate_mol_per_l * 1000.0, se.phosphate_mol_per_l * 1000.0, 3)
+        );
+    }
+    for (k, ((c, pka), (sc, spka))) in
+        e.buffers.iter().zip(se.buffers.iter()).take(usize::from(i.unknowns.buffers)).enumerate()
     {
         let name = if k == 0 { "buffer a" } else { "buffer b" };
         let _ = writeln!(s, "{:<LABEL$}{} mmol/L, pKa {}", name, pm(c * 1000.0, sc * 1000.0, 3), pm(*pka, *spka, 2));
@@ -113,7 +129,7 @@ fn quality_line(r: &FitReport) -> String {
         None => {
             let (lo, hi) = r.allowed_pka_range();
             // The data's range narrowed by PKA_INSIDE_DATA_PH at each end.
-            let pka = if r.input.buffers > 0 {
+            let pka = if r.input.unknowns.buffers > 0 {
                 format!(", pKa within pH {}-{}", fixed(lo, 2), fixed(hi, 2))
             } else {
                 String::new()
