@@ -212,15 +212,28 @@ pub const FORMATE: AcidBaseSystem = AcidBaseSystem {
     parent_acid: "HCOOH",
 };
 
-/// Oxalate: H2C2O4 / HC2O4⁻ / C2O4²⁻. pKa; ΔH° (kJ/mol): 1.25; 0 · 4.27; −6.7 (CRC / Martell &
-/// Smith / NBS tables, from memory; OpenStax "Chemistry 2e" Appendix H lists Ka 6.0e-2 and
-/// 6.1e-5, pKa 1.22 and 4.21, checked, not thermodynamic). No temperature function was found in a
-/// readable source (Kettler, Palmer & Wesolowski 1991 is the one to read): van 't Hoff, from memory.
+/// Oxalate: H2C2O4 / HC2O4⁻ / C2O4²⁻. Kettler, Palmer & Wesolowski (1991), J. Solution Chem. 20(9)
+/// (page numbers not checked): hydrogen-electrode concentration cells in NaCl media, K1 at 25–125 °C
+/// fitted together with earlier literature data, K2 at 0–175 °C; at infinite dilution and 25 °C
+/// (checked, via the paper's abstract): log K1 = −1.277, ΔH° −4.1 kJ/mol, ΔCp° −168 J/(K·mol);
+/// log K2 = −4.275, ΔH° −6.8 kJ/mol, ΔCp° −261 J/(K·mol). (The abstract prints ΔS°1 as "38"; the
+/// other three numbers give −38: a lost sign.) Their own five- and seven-term fits were not read, so
+/// these 25 °C quantities are used in the constant-ΔCp form (`clarke_glew`); pK1 = 1.246 / 1.277 /
+/// 1.360 / 1.405 and pK2 = 4.220 / 4.275 / 4.410 / 4.481 at 0 / 25 / 50 / 60 °C (calc).
+/// Second sources (`tests/reference.rs`, `tools/reference/logk_second_sources.py`): Shock's (1995,
+/// Am. J. Sci. 295, 496) HKF parameters as carried by the PyPI package pychnosz 1.5.3 cross K1 at
+/// 15–20 °C and part by 0.016 at 0 °C and 0.035 at 60 °C (those parameters are not self-consistent
+/// for this step, see the test), and lie 0.016–0.024 below K2 over 0–60 °C; the ion database of the
+/// PyPI package ionize 1.5.3 (pK 1.271, ΔH° −3.9 kJ/mol, ΔCp° −231 J/(K·mol), source not stated)
+/// agrees within 0.011 for K1 over 0–60 °C and gives pK2 4.266 at 25 °C, but its K2 enthalpy,
+/// +7.0 kJ/mol, has the opposite sign to Kettler et al.'s and Shock's (not used). The 0.05 mol/kg
+/// tetroxalate buffer follows the IUPAC table within 0.010 over 0–50 °C. Replaces van 't Hoff lines
+/// from memory (pK 1.25, ΔH° 0; 4.27, −6.7 kJ/mol).
 pub const OXALATE: AcidBaseSystem = AcidBaseSystem {
     key: "oxalate",
     forms: ["H2C2O4", "HC2O4-", "C2O4^2-", ""],
     steps: 2,
-    log_k: [LogK::vant_hoff(1.25, 0.0), LogK::vant_hoff(4.27, -6.7), NONE],
+    log_k: [clarke_glew(1.277, -4.1, -168.0), clarke_glew(4.275, -6.8, -261.0), NONE],
     charge_protonated: 0,
     parent_acid: "H2C2O4",
 };
