@@ -341,6 +341,24 @@ const SHOCK95_OXALATE_K2: [(f64, f64); 13] = [
     (60.0, 4.4571),
 ];
 
+/// pK of acetic acid = acetate + H+: Shock (1995), as [`SHOCK95_OXALATE_K1`] (same package, script and
+/// conditions; OBIGT species "acetic acid" and "acetate").
+const SHOCK95_ACETATE: [(f64, f64); 13] = [
+    (0.0, 4.7812),
+    (5.0, 4.7709),
+    (10.0, 4.7636),
+    (15.0, 4.7591),
+    (20.0, 4.7570),
+    (25.0, 4.7572),
+    (30.0, 4.7594),
+    (35.0, 4.7635),
+    (40.0, 4.7694),
+    (45.0, 4.7768),
+    (50.0, 4.7858),
+    (55.0, 4.7963),
+    (60.0, 4.8080),
+];
+
 /// One check: a catalogue step against a published function or value that is not the one the
 /// catalogue carries, at the temperatures the reference covers.
 struct PkCheck {
@@ -368,6 +386,7 @@ const T_0_35: &[f64] = &[0.0, 5.0, 10.0, 15.0, 20.0, 25.0, 30.0, 35.0];
 const TOL_SHOCK95_OX1: f64 = 0.036;
 const TOL_SHOCK95_OX2: f64 = 0.025;
 const TOL_IONIZE_OX1: f64 = 0.011;
+const TOL_THERMODDEM_P1: f64 = 0.025;
 
 /// The published measurement tables themselves (NBS cell papers of the 1930s–50s) could not be read
 /// here; every reference below is a published function of temperature or a published value, read in
@@ -406,6 +425,33 @@ const PK_CHECKS: &[PkCheck] = &[
         reference: |t| pk_from_ln_k(115.54, -4576.7518, -18.453, 0.0, t),
         tol: 0.005,
     },
+    // Phosphate K1 at 25 °C: NIST SRD 46 (v3), as carried by PHREEQC's minteq.v4.dat (shipped in the
+    // PyPI package phreeqc 1.1.1, printed by tools/reference/logk_second_sources.py): cumulative
+    // formation log K 21.721 (H3PO4) and 19.573 (H2PO4-), so pK1 = 2.148, each printed to 0.001: bound
+    // 0.002.
+    PkCheck {
+        key: "phosphate",
+        step: 1,
+        source: "NIST SRD 46 via minteq.v4.dat (25 °C)",
+        celsius: &[25.0],
+        reference: |_| 21.721 - 19.573,
+        tol: 0.002,
+    },
+    // Phosphate K1: Thermoddem v1.10 (PHREEQC_ThermoddemV1.10_15Dec2020.dat in the same package),
+    // H2PO4- + H+ = H3PO4, log K 2.140, `-analytic` 7.1025502E+2 1.1203519E-1 -3.9337065E+4
+    // -2.5690201E+2 2.3206641E+6 (its references: "92gre/fug" for log K, "89bsho/hel" for Cp). An
+    // independent evaluation, 0.008 below Bates at 25 °C and 0.024 below at 0 °C: that is the
+    // sources' scatter, the bound here (measured worst rounded up).
+    PkCheck {
+        key: "phosphate",
+        step: 1,
+        source: "Thermoddem v1.10 -analytic",
+        celsius: T_0_60,
+        reference: |t| {
+            7.102_550_2e2 + 1.120_351_9e-1 * t - 3.933_706_5e4 / t - 2.569_020_1e2 * t.log10() + 2.320_664_1e6 / (t * t)
+        },
+        tol: TOL_THERMODDEM_P1,
+    },
     // Phosphate K2: Goldberg et al. (2002), Section 8: pK 7.198, ΔH° 3.6 kJ/mol, ΔCp° −230 J/(K·mol)
     // (checked, via a public transcription). Catalogue: Millero & Pierrot's refit of Bates & Acree
     // (1943). The two evaluations of the same cells differ by up to 0.011 (at 0 °C: 7.303 against
@@ -431,7 +477,10 @@ const PK_CHECKS: &[PkCheck] = &[
         tol: 0.006,
     },
     // Acetic acid: Goldberg et al. (2002), Section 8: pK 4.756, ΔH° −0.41 kJ/mol, ΔCp° −142 J/(K·mol)
-    // (checked, via a public transcription). Catalogue: Harned & Ehlers 1933 (from memory).
+    // (checked, via a public transcription, and in the ion database of the PyPI package ionize 1.5.3,
+    // ionize/Database/ion_data.json, "acetic acid": 4.756, −410 J/mol, −142 J/(K·mol), printed by
+    // tools/reference/logk_second_sources.py). Catalogue: Harned & Ehlers 1933 (coefficients from
+    // memory).
     PkCheck {
         key: "acetate",
         step: 1,
@@ -439,6 +488,25 @@ const PK_CHECKS: &[PkCheck] = &[
         celsius: T_0_60,
         reference: |t| goldberg(4.756, -0.41, -142.0, t),
         tol: 0.005,
+    },
+    // Acetic acid: Shock (1995), revised-HKF parameters via pychnosz 1.5.3 (table above).
+    PkCheck {
+        key: "acetate",
+        step: 1,
+        source: "Shock 1995 via pychnosz 1.5.3",
+        celsius: T_0_60,
+        reference: |t| tabulated(&SHOCK95_ACETATE, t),
+        tol: 0.005,
+    },
+    // Acetic acid at 25 °C: NIST SRD 46 (v4), as carried by minteq.v4.dat (phreeqc 1.1.1): association
+    // log K 4.757 (printed to 0.001; bound 0.002).
+    PkCheck {
+        key: "acetate",
+        step: 1,
+        source: "NIST SRD 46 via minteq.v4.dat (25 °C)",
+        celsius: &[25.0],
+        reference: |_| 4.757,
+        tol: 0.002,
     },
     // Ammonium: Millero & Pierrot (1998) refit of Bates & Pinching's (1949) cells:
     // ln K = −0.25444 − 6285.33/T + 0.0001635·T (checked, as transcribed in Pytzer, NH4_MP98, and

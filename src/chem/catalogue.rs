@@ -50,12 +50,16 @@ pub const CARBONATE: AcidBaseSystem = AcidBaseSystem {
 };
 
 /// Phosphate: H3PO4 / H2PO4⁻ / HPO4²⁻ / PO4³⁻.
-/// Step 1: Bates (1951), J. Res. NBS 47, 127 (journal volume and page from memory), measured
-/// 0–60 °C (from memory): pK1 = 799.31/T − 4.5535 + 0.013486·T (coefficients from memory, not read
-/// in the paper). Confirmed in value: Millero & Pierrot's (1998, Aquat. Geochem. 4, 153) refit of
-/// the same cells, ln K1 = 115.54 − 4576.7518/T − 18.453·ln T (checked, as transcribed in the
-/// Pytzer library and in the MyAMI code), agrees within 0.002 over 0–60 °C (`tests/reference.rs`).
-/// pK1 = 2.056 / 2.148 / 2.278 / 2.339 at 0 / 25 / 50 / 60 °C (calc).
+/// Step 1: Bates (1951), J. Res. NBS 47, 127 (checked: cited so in the reference list of a later
+/// J. Solution Chem. paper on the first ionization constant of orthophosphoric acid to 200 °C),
+/// "First dissociation constant of phosphoric acid from 0 to 60 °C": pK1 = 799.31/T − 4.5535 +
+/// 0.013486·T, T in K, 0–60 °C (checked against the paper's abstract in a public OCR transcription:
+/// the range, the form and 0.013486 read cleanly; the first two constants read "79; ;31" and
+/// "1.5535" there, and only 799.31 and 4.5535 give the accepted 25 °C value). Confirmed in value:
+/// Millero & Pierrot's (1998, Aquat. Geochem. 4, 153) refit of the same cells, ln K1 = 115.54 −
+/// 4576.7518/T − 18.453·ln T (checked, as transcribed in the Pytzer library and in the MyAMI code),
+/// agrees within 0.001 over 0–60 °C; NIST SRD 46 via PHREEQC's minteq.v4.dat gives 2.148 at 25 °C
+/// (`tests/reference.rs`). pK1 = 2.056 / 2.148 / 2.278 / 2.339 at 0 / 25 / 50 / 60 °C (calc).
 /// Step 2: ln K2 = 172.1033 − 8814.715/T − 27.927·ln T, Millero & Pierrot's (1998) refit of the
 /// cells of Bates & Acree (1943), J. Res. NBS 30, 129 (0–60 °C); the S = 0 terms of Millero
 /// (1995), Geochim. Cosmochim. Acta 59, 661 (Yao & Millero 1995) (checked, via Pytzer, which
@@ -81,12 +85,18 @@ pub const PHOSPHATE: AcidBaseSystem = AcidBaseSystem {
 
 /// Acetate: CH3COOH / CH3COO⁻. Harned & Ehlers (1933), J. Am. Chem. Soc. 55, 652 (journal volume
 /// and page from memory), cells at 0–60 °C: pK = 1170.48/T − 3.1649 + 0.013399·T (coefficients
-/// from memory, not read in the paper); pK = 4.780 / 4.756 / 4.787 / 4.812 at 0 / 25 / 50 / 60 °C
-/// (calc). Confirmed in value: Goldberg, Kishore & Lennen (2002), J. Phys. Chem. Ref. Data 31, 231,
-/// select pK 4.756, ΔH° −0.41 kJ/mol, ΔCp° −142 J/(K·mol) (checked, via a public transcription of
-/// their Section 8; NIST SRD 46 via PHREEQC's minteq.v4.dat also gives 4.757 and 0.41 kJ/mol for the
-/// association), whose constant-ΔCp function agrees within 0.005 over 0–60 °C
-/// (`tests/reference.rs`). Beyond 60 °C the fit is extrapolated.
+/// from memory: neither the paper nor a transcription of this function was found in a readable
+/// source); pK = 4.780 / 4.756 / 4.787 / 4.812 at 0 / 25 / 50 / 60 °C (calc). Confirmed in value by
+/// three evaluations it does not carry (`tests/reference.rs`; they draw on largely the same classic
+/// cells, so they confirm the transcription of the coefficients rather than the data):
+/// Goldberg, Kishore & Lennen (2002), J. Phys. Chem. Ref. Data 31, 231, select pK 4.756, ΔH° −0.41
+/// kJ/mol, ΔCp° −142 J/(K·mol) (checked, via a public transcription of their Section 8, and as carried
+/// by the ion database of the PyPI package ionize 1.5.3), within 0.005 over 0–60 °C; Shock's (1995,
+/// Am. J. Sci. 295, 496) HKF parameters as carried by the PyPI package pychnosz 1.5.3
+/// (`tools/reference/logk_second_sources.py`), within 0.005 over 0–60 °C (0.0015 over 0–50 °C);
+/// NIST SRD 46 via PHREEQC's minteq.v4.dat, 4.757 at 25 °C (and 0.41 kJ/mol for the association),
+/// within 0.0012. A wrong digit in any of the three coefficients would show up in these checks
+/// unless it moved pK by less than about 0.005 over 0–60 °C. Beyond 60 °C the fit is extrapolated.
 pub const ACETATE: AcidBaseSystem = AcidBaseSystem {
     key: "acetate",
     forms: ["CH3COOH", "CH3COO-", "", ""],
