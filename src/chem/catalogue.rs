@@ -50,12 +50,16 @@ pub const CARBONATE: AcidBaseSystem = AcidBaseSystem {
 };
 
 /// Phosphate: H3PO4 / H2PO4⁻ / HPO4²⁻ / PO4³⁻.
-/// Step 1: Bates (1951), J. Res. NBS 47, 127 (journal volume and page from memory), measured
-/// 0–60 °C (from memory): pK1 = 799.31/T − 4.5535 + 0.013486·T (coefficients from memory, not read
-/// in the paper). Confirmed in value: Millero & Pierrot's (1998, Aquat. Geochem. 4, 153) refit of
-/// the same cells, ln K1 = 115.54 − 4576.7518/T − 18.453·ln T (checked, as transcribed in the
-/// Pytzer library and in the MyAMI code), agrees within 0.002 over 0–60 °C (`tests/reference.rs`).
-/// pK1 = 2.056 / 2.148 / 2.278 / 2.339 at 0 / 25 / 50 / 60 °C (calc).
+/// Step 1: Bates (1951), J. Res. NBS 47, 127 (checked: cited so in the reference list of a later
+/// J. Solution Chem. paper on the first ionization constant of orthophosphoric acid to 200 °C),
+/// "First dissociation constant of phosphoric acid from 0 to 60 °C": pK1 = 799.31/T − 4.5535 +
+/// 0.013486·T, T in K, 0–60 °C (checked against the paper's abstract in a public OCR transcription:
+/// the range, the form and 0.013486 read cleanly; the first two constants read "79; ;31" and
+/// "1.5535" there, and only 799.31 and 4.5535 give the accepted 25 °C value). Confirmed in value:
+/// Millero & Pierrot's (1998, Aquat. Geochem. 4, 153) refit of the same cells, ln K1 = 115.54 −
+/// 4576.7518/T − 18.453·ln T (checked, as transcribed in the Pytzer library and in the MyAMI code),
+/// agrees within 0.001 over 0–60 °C; NIST SRD 46 via PHREEQC's minteq.v4.dat gives 2.148 at 25 °C
+/// (`tests/reference.rs`). pK1 = 2.056 / 2.148 / 2.278 / 2.339 at 0 / 25 / 50 / 60 °C (calc).
 /// Step 2: ln K2 = 172.1033 − 8814.715/T − 27.927·ln T, Millero & Pierrot's (1998) refit of the
 /// cells of Bates & Acree (1943), J. Res. NBS 30, 129 (0–60 °C); the S = 0 terms of Millero
 /// (1995), Geochim. Cosmochim. Acta 59, 661 (Yao & Millero 1995) (checked, via Pytzer, which
@@ -81,12 +85,18 @@ pub const PHOSPHATE: AcidBaseSystem = AcidBaseSystem {
 
 /// Acetate: CH3COOH / CH3COO⁻. Harned & Ehlers (1933), J. Am. Chem. Soc. 55, 652 (journal volume
 /// and page from memory), cells at 0–60 °C: pK = 1170.48/T − 3.1649 + 0.013399·T (coefficients
-/// from memory, not read in the paper); pK = 4.780 / 4.756 / 4.787 / 4.812 at 0 / 25 / 50 / 60 °C
-/// (calc). Confirmed in value: Goldberg, Kishore & Lennen (2002), J. Phys. Chem. Ref. Data 31, 231,
-/// select pK 4.756, ΔH° −0.41 kJ/mol, ΔCp° −142 J/(K·mol) (checked, via a public transcription of
-/// their Section 8; NIST SRD 46 via PHREEQC's minteq.v4.dat also gives 4.757 and 0.41 kJ/mol for the
-/// association), whose constant-ΔCp function agrees within 0.005 over 0–60 °C
-/// (`tests/reference.rs`). Beyond 60 °C the fit is extrapolated.
+/// from memory: neither the paper nor a transcription of this function was found in a readable
+/// source); pK = 4.780 / 4.756 / 4.787 / 4.812 at 0 / 25 / 50 / 60 °C (calc). Confirmed in value by
+/// three evaluations it does not carry (`tests/reference.rs`; they draw on largely the same classic
+/// cells, so they confirm the transcription of the coefficients rather than the data):
+/// Goldberg, Kishore & Lennen (2002), J. Phys. Chem. Ref. Data 31, 231, select pK 4.756, ΔH° −0.41
+/// kJ/mol, ΔCp° −142 J/(K·mol) (checked, via a public transcription of their Section 8, and as carried
+/// by the ion database of the PyPI package ionize 1.5.3), within 0.005 over 0–60 °C; Shock's (1995,
+/// Am. J. Sci. 295, 496) HKF parameters as carried by the PyPI package pychnosz 1.5.3
+/// (`tools/reference/logk_second_sources.py`), within 0.005 over 0–60 °C (0.0015 over 0–50 °C);
+/// NIST SRD 46 via PHREEQC's minteq.v4.dat, 4.757 at 25 °C (and 0.41 kJ/mol for the association),
+/// within 0.0012. A wrong digit in any of the three coefficients would show up in these checks
+/// unless it moved pK by less than about 0.005 over 0–60 °C. Beyond 60 °C the fit is extrapolated.
 pub const ACETATE: AcidBaseSystem = AcidBaseSystem {
     key: "acetate",
     forms: ["CH3COOH", "CH3COO-", "", ""],
@@ -212,15 +222,28 @@ pub const FORMATE: AcidBaseSystem = AcidBaseSystem {
     parent_acid: "HCOOH",
 };
 
-/// Oxalate: H2C2O4 / HC2O4⁻ / C2O4²⁻. pKa; ΔH° (kJ/mol): 1.25; 0 · 4.27; −6.7 (CRC / Martell &
-/// Smith / NBS tables, from memory; OpenStax "Chemistry 2e" Appendix H lists Ka 6.0e-2 and
-/// 6.1e-5, pKa 1.22 and 4.21, checked, not thermodynamic). No temperature function was found in a
-/// readable source (Kettler, Palmer & Wesolowski 1991 is the one to read): van 't Hoff, from memory.
+/// Oxalate: H2C2O4 / HC2O4⁻ / C2O4²⁻. Kettler, Palmer & Wesolowski (1991), J. Solution Chem. 20(9)
+/// (page numbers not checked): hydrogen-electrode concentration cells in NaCl media, K1 at 25–125 °C
+/// fitted together with earlier literature data, K2 at 0–175 °C; at infinite dilution and 25 °C
+/// (checked, via the paper's abstract): log K1 = −1.277, ΔH° −4.1 kJ/mol, ΔCp° −168 J/(K·mol);
+/// log K2 = −4.275, ΔH° −6.8 kJ/mol, ΔCp° −261 J/(K·mol). (The abstract prints ΔS°1 as "38"; the
+/// other three numbers give −38: a lost sign.) Their own five- and seven-term fits were not read, so
+/// these 25 °C quantities are used in the constant-ΔCp form (`clarke_glew`); pK1 = 1.246 / 1.277 /
+/// 1.360 / 1.405 and pK2 = 4.220 / 4.275 / 4.410 / 4.481 at 0 / 25 / 50 / 60 °C (calc).
+/// Second sources (`tests/reference.rs`, `tools/reference/logk_second_sources.py`): Shock's (1995,
+/// Am. J. Sci. 295, 496) HKF parameters as carried by the PyPI package pychnosz 1.5.3 cross K1 at
+/// 15–20 °C and part by 0.016 at 0 °C and 0.035 at 60 °C (those parameters are not self-consistent
+/// for this step, see the test), and lie 0.016–0.024 below K2 over 0–60 °C; the ion database of the
+/// PyPI package ionize 1.5.3 (pK 1.271, ΔH° −3.9 kJ/mol, ΔCp° −231 J/(K·mol), source not stated)
+/// agrees within 0.011 for K1 over 0–60 °C and gives pK2 4.266 at 25 °C, but its K2 enthalpy,
+/// +7.0 kJ/mol, has the opposite sign to Kettler et al.'s and Shock's (not used). The 0.05 mol/kg
+/// tetroxalate buffer follows the IUPAC table within 0.010 over 0–50 °C. Replaces van 't Hoff lines
+/// from memory (pK 1.25, ΔH° 0; 4.27, −6.7 kJ/mol).
 pub const OXALATE: AcidBaseSystem = AcidBaseSystem {
     key: "oxalate",
     forms: ["H2C2O4", "HC2O4-", "C2O4^2-", ""],
     steps: 2,
-    log_k: [LogK::vant_hoff(1.25, 0.0), LogK::vant_hoff(4.27, -6.7), NONE],
+    log_k: [clarke_glew(1.277, -4.1, -168.0), clarke_glew(4.275, -6.8, -261.0), NONE],
     charge_protonated: 0,
     parent_acid: "H2C2O4",
 };
