@@ -435,3 +435,24 @@ fn speciate_reports_alkalinity_at_the_standard_methods_endpoints() {
         "{a}"
     );
 }
+
+/// `--json` reads the whole request from stdin; a request option on the command line beside it
+/// is refused (exit 2, JSON error document) with a message that says how: which JSON keys to
+/// use instead (README, "Vocabulary").
+#[test]
+fn json_with_request_flags_is_refused_with_the_keys_to_use() {
+    for (args, stdin, keys) in [
+        (vec!["speciate", "--json", "--temperature-c", "30"], r#"{"dissolved": {"NaHCO3": 0.002}}"#, "temperature_c"),
+        (
+            vec!["salt", "--json", "--temperature-c", "30"],
+            r#"{"salt": "Na2HPO4", "concentration_mol_per_l": 0.05}"#,
+            "temperature_c",
+        ),
+        (vec!["plan", "--json", "--setpoint-ph", "7"], "{}", "setpoint_ph"),
+        (vec!["curve", "--json", "--point-count", "32"], "{}", "point_count"),
+        (vec!["fit", "--json", "--phosphate"], "{}", "phosphate"),
+    ] {
+        let msg = json_error(&args, stdin);
+        assert!(msg.contains("JSON object instead of the command line") && msg.contains(keys), "{args:?}: {msg}");
+    }
+}
