@@ -1,0 +1,206 @@
+//! The emulated board: QEMU's `mps2-an386` (Arm MPS2 with a Cortex-M4F) as a
+//! hardware-in-the-loop rig.
+//!
+//! - **UART0** (an Arm CMSDK APB UART at `0x4000_4000`, QEMU's first `-serial`) carries the link:
+//!   registers DATA (+0x00: read a received byte, write one to send), STATE (+0x04: bit 0 TX
+//!   buffer full, bit 1 RX buffer full, bits 2–3 overrun, write 1 to clear), CTRL (+0x08: bit 0
+//!   TX enable, bit 1 RX enable) and BAUDDIV (+0x10, at least 16). QEMU holds input until it is
+//!   read, so polling loses nothing; after enabling the receiver one dummy read of DATA is needed
+//!   or QEMU delivers the first byte only about a second later (observed with QEMU 7.2).
+//! - **Outputs**: the rig has no pins. The relay, the alarm and the pump inputs are
+//!   embedded-hal implementations that hold what they were driven to; the application reports
+//!   them in every actuator frame, and the host's plant runs on them.
+//! - **Semihosting** ends the emulation (exit status 0 after the end of the run, 1 when the link
+//!   failed). A real board has no semihosting host: there `bkpt` would fault, so nothing outside
+//!   this module uses it.
+//!
+//! This module holds the firmware's only `unsafe` code: volatile accesses to the UART's
+//! registers.
+
+use core::convert::Infallible;
+use core::sync::atomic::{AtomicBool, Ordering};
+
+use crate::app::StrokeOutput;
+
+/// UART0's base address on mps2-an386 (the board's memory map).
+const UART0: usize = 0x4000_4000;
+const DATA: usize = 0x00;
+const STATE: usize = 0x04;
+const CTRL: usize = 0x08;
+const BAUDDIV: usize = 0x10;
+const TX_FULL: u32 = 1 << 0;
+const RX_FULL: u32 = 1 << 1;
+const OVERRUNS: u32 = 0b1100;
+/// 25 MHz / 115 200 baud ≈ 217 (the emulation ignores the rate; a divisor of at least 16 is
+/// required).
+const BAUD_DIVISOR: u32 = 217;
+
+static UART_TAKEN: AtomicBool = AtomicBool::new(false);
+
+/// UART0, owned: [`Uart::take`] hands it out once.
+pub struct Uart {
+    _owned: (),
+}
+
+impl Uart {
+    /// UART0, enabled for transmit and receive; `None` after the first call.
+    pub fn take() -> Option<Self> {
+        if UART_TAKEN.swap(true, Ordering::AcqRel) {
+            return None;
+        }
+        let uart = Self { _owned: () };
+        uart.write(BAUDDIV, BAUD_DIVISOR);
+        uart.write(CTRL, 0b11);
+        uart.write(STATE, OVERRUNS);
+        // The dummy read (see the module docs).
+        let _ = uart.read(DATA);
+        Some(uart)
+    }
+
+    fn read(&self, offset: usize) -> u32 {
+        let reg = (UART0 + offset) as *const u32;
+        // SAFETY: `reg` is one of UART0's word-aligned registers on this board's memory map
+        // (DATA, STATE, CTRL, BAUDDIV), valid for a volatile 32-bit read at any time; `self`
+        // proves this code owns the UART (`take` hands it out once).
+        unsafe { core::ptr::read_volatile(reg) }
+    }
+
+    fn write(&self, offset: usize, value: u32) {
+        let reg = (UART0 + offset) as *mut u32;
+        // SAFETY: as in `read`: a word-aligned UART0 register, owned through `self`; the values
+        // written are the ones the device documents for it.
+        unsafe { core::ptr::write_volatile(reg, value) }
+    }
+
+    fn receive(&self) -> u8 {
+        loop {
+            let state = self.read(STATE);
+            if state & OVERRUNS != 0 {
+                self.write(STATE, OVERRUNS);
+            }
+            if state & RX_FULL != 0 {
+                return (self.read(DATA) & 0xFF) as u8;
+            }
+        }
+    }
+
+    fn transmit(&self, byte: u8) {
+        while self.read(STATE) & TX_FULL != 0 {}
+        self.write(DATA, u32::from(byte));
+    }
+}
+
+impl embedded_io::ErrorType for Uart {
+    type Error = Infallible;
+}
+
+impl embedded_io::Read for Uart {
+    /// Blocks until a byte arrives; returns one byte at a time.
+    fn read(&mut self, buf: &mut [u8]) -> Result<usize, Infallible> {
+        match buf.first_mut() {
+            Some(slot) => {
+                *slot = self.receive();
+                Ok(1)
+            }
+            None => Ok(0),
+        }
+    }
+}
+
+impl embedded_io::Write for Uart {
+    fn write(&mut self, buf: &[u8]) -> Result<usize, Infallible> {
+        for b in buf {
+            self.transmit(*b);
+        }
+        Ok(buf.len())
+    }
+
+    fn flush(&mut self) -> Result<(), Infallible> {
+        while self.read(STATE) & TX_FULL != 0 {}
+        Ok(())
+    }
+}
+
+/// A digital output of the rig: holds the level it was driven to.
+#[derive(Default)]
+pub struct RigPin {
+    high: bool,
+}
+
+impl embedded_hal::digital::ErrorType for RigPin {
+    type Error = Infallible;
+}
+
+impl embedded_hal::digital::OutputPin for RigPin {
+    fn set_low(&mut self) -> Result<(), Infallible> {
+        self.high = false;
+        Ok(())
+    }
+
+    fn set_high(&mut self) -> Result<(), Infallible> {
+        self.high = true;
+        Ok(())
+    }
+}
+
+impl embedded_hal::digital::StatefulOutputPin for RigPin {
+    fn is_set_high(&mut self) -> Result<bool, Infallible> {
+        Ok(self.high)
+    }
+
+    fn is_set_low(&mut self) -> Result<bool, Infallible> {
+        Ok(!self.high)
+    }
+}
+
+/// A PWM output of the rig, 0–[`RigPwm::MAX_DUTY`]: holds the duty it was set to.
+#[derive(Default)]
+pub struct RigPwm {
+    duty: u16,
+}
+
+impl RigPwm {
+    /// Full duty: 10 000 steps (0.01 %), finer than any pump resolution the settings allow
+    /// to matter here (the example's is 1000 steps).
+    pub const MAX_DUTY: u16 = 10_000;
+}
+
+impl embedded_hal::pwm::ErrorType for RigPwm {
+    type Error = Infallible;
+}
+
+impl embedded_hal::pwm::SetDutyCycle for RigPwm {
+    fn max_duty_cycle(&self) -> u16 {
+        Self::MAX_DUTY
+    }
+
+    fn set_duty_cycle(&mut self, duty: u16) -> Result<(), Infallible> {
+        self.duty = duty.min(Self::MAX_DUTY);
+        Ok(())
+    }
+}
+
+/// A pulse output of the rig: holds the strokes of the coming tick.
+#[derive(Default)]
+pub struct RigStrokes {
+    strokes: u32,
+}
+
+impl StrokeOutput for RigStrokes {
+    type Error = Infallible;
+
+    fn give(&mut self, strokes: u32) -> Result<(), Infallible> {
+        self.strokes = strokes;
+        Ok(())
+    }
+}
+
+/// Ends the emulation: exit status 0 when `ok`, else 1 (semihosting; QEMU needs
+/// `-semihosting-config enable=on,target=native`). Without a semihosting host it stops here.
+pub fn end(ok: bool) -> ! {
+    use cortex_m_semihosting::debug;
+    debug::exit(if ok { debug::EXIT_SUCCESS } else { debug::EXIT_FAILURE });
+    loop {
+        cortex_m::asm::wfi();
+    }
+}
