@@ -97,6 +97,19 @@ pub fn firmware_elf() -> PathBuf {
     )
 }
 
+/// The firmware image linked for a small MCU's memory map (256 KiB flash, 64 KiB RAM):
+/// `PHDOSE_BOARD_ELF_MCU`, else the firmware crate's `target/mcu` release build (`./ci.sh
+/// firmware` builds it).
+pub fn firmware_elf_mcu() -> PathBuf {
+    std::env::var_os("PHDOSE_BOARD_ELF_MCU").map_or_else(
+        || {
+            Path::new(env!("CARGO_MANIFEST_DIR"))
+                .join("../examples/board/target/mcu/thumbv7em-none-eabihf/release/phdose-board")
+        },
+        PathBuf::from,
+    )
+}
+
 /// The configuration blob stored in the firmware image (the example skid, as committed).
 pub fn built_in_blob() -> Result<Vec<u8>, HilError> {
     let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("../examples/board/skid/plating-rinse.bin");
@@ -220,14 +233,20 @@ impl Board {
         }
     }
 
-    /// Ends the run: the board turns its outputs off and ends the emulation. Returns QEMU's
-    /// exit status (0 after a clean end).
-    pub fn finish(mut self) -> Result<ExitStatus, HilError> {
+    /// Ends the run: the board turns its outputs off, reports its stack's high water mark and
+    /// ends the emulation.
+    pub fn finish(mut self) -> Result<Finished, HilError> {
         self.send(&ToBoard::EndOfRun)?;
         let deadline = Instant::now() + REPLY_TIMEOUT;
         loop {
-            if let Some(s) = self.child.try_wait()? {
-                return Ok(s);
+            if let Some(status) = self.child.try_wait()? {
+                let log = self.log_text();
+                let stack_bytes = log
+                    .lines()
+                    .find_map(|l| l.strip_prefix("phdose-board: stack "))
+                    .and_then(|rest| rest.split_whitespace().next())
+                    .and_then(|n| n.parse().ok());
+                return Ok(Finished { status, stack_bytes, log });
             }
             if Instant::now() > deadline {
                 return Err(HilError::Qemu("did not exit after the end of the run".into()));
@@ -246,6 +265,17 @@ impl Drop for Board {
         }
         let _ = std::fs::remove_file(&self.socket);
     }
+}
+
+/// How a run ended.
+#[derive(Debug)]
+pub struct Finished {
+    /// QEMU's exit status: 0 after a clean end of the run (the firmware's semihosting exit).
+    pub status: ExitStatus,
+    /// The stack's high water mark the firmware reported, bytes.
+    pub stack_bytes: Option<usize>,
+    /// QEMU's output.
+    pub log: String,
 }
 
 fn connect(socket: &Path) -> Result<UnixStream, HilError> {
@@ -461,7 +491,7 @@ impl Lockstep {
     }
 
     /// Ends the run (see [`Board::finish`]).
-    pub fn finish(self) -> Result<ExitStatus, HilError> {
+    pub fn finish(self) -> Result<Finished, HilError> {
         self.board.finish()
     }
 

@@ -9,7 +9,9 @@
 use phdose::config::{PumpSettings, blob, boot, example};
 use phdose::control::controller::Warnings;
 use phdose::control::supervisor::{State, TripReason};
-use phdose_hil_tests::{Config, Lockstep, built_in_blob, firmware_elf, flipped, frame_bytes, host_frame_bytes, pack};
+use phdose_hil_tests::{
+    Config, Lockstep, built_in_blob, firmware_elf, firmware_elf_mcu, flipped, frame_bytes, host_frame_bytes, pack,
+};
 use phdose_link::{CRC32, ConfigSource, KIND_SENSORS, RejectCode, SensorFrame, ToBoard, ToHost};
 use phdose_sim::scenario::{Disturbances, FlowChange, Scenario, plating_rinse};
 
@@ -85,7 +87,30 @@ fn nominal_the_board_brings_the_tank_into_the_band_and_matches_the_host() {
         }
     }
     assert_bit_exact(&l);
-    assert!(l.finish().unwrap().success());
+    let end = l.finish().unwrap();
+    assert!(end.status.success(), "{}", end.log);
+    println!("nominal: stack high water {:?} bytes", end.stack_bytes);
+    assert!(end.stack_bytes.is_some_and(|b| b > 1024), "{}", end.log);
+}
+
+/// The image linked for a small MCU (64 KiB of RAM, the stack at its top) runs the same loop:
+/// 20 minutes from raw rinse water, bit for bit the host's outputs.
+#[test]
+fn the_small_mcu_image_runs_the_same_loop() {
+    let mut s = quiet(20.0);
+    s.run.start_at_setpoint = false;
+    let mut l = Lockstep::start(&firmware_elf_mcu(), "mcu", &s, Config::BuiltIn).unwrap_or_else(|e| panic!("{e}"));
+    assert!(l.hello.allowed);
+    l.run_until(s.run.duration_s, |_, _| {}).unwrap();
+    assert!(l.records.iter().all(|r| r.board.trip.is_none()));
+    assert_bit_exact(&l);
+    let end = l.finish().unwrap();
+    assert!(end.status.success(), "{}", end.log);
+    // The measured stack (the firmware's only RAM besides 4 bytes of statics) leaves at least a
+    // quarter of the 64 KiB free.
+    let stack = end.stack_bytes.expect("the firmware reports its stack");
+    println!("small MCU image: stack high water {stack} bytes of 65536");
+    assert!(stack < 48 * 1024, "stack {stack} bytes");
 }
 
 /// The stored blob is the example skid as `phdose pack` writes it (regenerate it when the
@@ -144,7 +169,7 @@ fn a_stuck_on_pump_trips_runaway_before_the_high_limit() {
     assert!(peak_before < high && peak < high, "the tank reached pH {peak:.2} (limit {high})");
     assert_off_after(&l, trip.sent.tick);
     assert_bit_exact(&l);
-    assert!(l.finish().unwrap().success());
+    assert!(l.finish().unwrap().status.success());
 }
 
 /// (b) The rinse flow stops at minute 10 (the line is shut): the flow switch opens and the
@@ -163,7 +188,7 @@ fn lost_flow_trips_at_once() {
     assert!(l.records.iter().all(|r| r.ph_range.0 > low && r.ph_range.1 < high));
     assert_off_after(&l, trip.sent.tick);
     assert_bit_exact(&l);
-    assert!(l.finish().unwrap().success());
+    assert!(l.finish().unwrap().status.success());
 }
 
 /// (b) Probe failures: at minute 10 probe 1's cable breaks (its input reads NaN): the board
@@ -199,7 +224,7 @@ fn failed_probes_warn_then_trip() {
     assert!((trip.t_s - 900.0).abs() < 1e-6, "tripped at {} s", trip.t_s);
     assert_off_after(&l, trip.sent.tick);
     assert_bit_exact(&l);
-    assert!(l.finish().unwrap().success());
+    assert!(l.finish().unwrap().status.success());
 }
 
 /// (c) A corrupted configuration (one bit flipped in the stored blob's payload): the board's
@@ -224,7 +249,7 @@ fn a_corrupted_config_is_refused_and_nothing_doses() {
         assert!(!r.board.pins.relay && r.board.pins.alarm && r.board.pins.duty == [0, 0]);
         assert_eq!(r.pump_l_per_h, [0.0, 0.0]);
     }
-    assert!(l.finish().unwrap().success());
+    assert!(l.finish().unwrap().status.success());
 }
 
 /// (c) A configuration that decodes but fails its boot checks (setpoint 12 above the high hard
@@ -240,7 +265,7 @@ fn a_config_failing_its_checks_is_refused() {
     l.run_until(s.run.duration_s, |_, _| {}).unwrap();
     assert!(l.records.iter().all(|r| r.board.state == State::Refused && !r.board.pins.relay && r.board.pins.alarm));
     assert_bit_exact(&l);
-    assert!(l.finish().unwrap().success());
+    assert!(l.finish().unwrap().status.success());
 }
 
 /// Makes the bytes of a broken frame for the run so far.
@@ -338,5 +363,5 @@ fn bad_frames_are_refused_and_the_outputs_go_off() {
     assert_bit_exact(&l);
     let (low, high) = (f64::from(s.skid.control.low_limit_ph), f64::from(s.skid.control.high_limit_ph));
     assert!(l.records.iter().all(|r| r.ph_range.0 > low && r.ph_range.1 < high));
-    assert!(l.finish().unwrap().success());
+    assert!(l.finish().unwrap().status.success());
 }

@@ -14,8 +14,14 @@
 //!   failed). A real board has no semihosting host: there `bkpt` would fault, so nothing outside
 //!   this module uses it.
 //!
+//! - **Stack measurement**: at boot the free RAM between the statics and the stack is painted
+//!   with a pattern; at the end of the run the deepest word overwritten gives the stack's high
+//!   water mark, printed on the semihosting console (QEMU's standard output). Every buffer of
+//!   the firmware (configuration, receive frame, controller) lives on the stack, so this is its
+//!   RAM use beside the statics.
+//!
 //! This module holds the firmware's only `unsafe` code: volatile accesses to the UART's
-//! registers.
+//! registers and to the unused RAM below the stack.
 
 use core::convert::Infallible;
 use core::sync::atomic::{AtomicBool, Ordering};
@@ -193,6 +199,78 @@ impl StrokeOutput for RigStrokes {
         self.strokes = strokes;
         Ok(())
     }
+}
+
+unsafe extern "C" {
+    /// End of the zero-initialised statics (cortex-m-rt's linker script).
+    static __ebss: u32;
+    /// Top of the stack: the end of RAM (cortex-m-rt's linker script).
+    static _stack_start: u32;
+}
+
+/// The pattern painted over free RAM.
+const PAINT: u32 = 0xC0FF_EE55;
+/// Bytes below the stack pointer left unpainted (the painting function's own frame).
+const PAINT_MARGIN: usize = 256;
+
+/// The free RAM: from the end of the statics (word-aligned) to the top of the stack.
+fn ram_bounds() -> (usize, usize) {
+    let bottom = (&raw const __ebss) as usize;
+    let top = (&raw const _stack_start) as usize;
+    ((bottom + 3) & !3, top)
+}
+
+/// Paints the free RAM below the stack pointer. Call it first thing in `main`, with no
+/// interrupt enabled.
+pub fn paint_stack() {
+    let (bottom, _) = ram_bounds();
+    let sp = cortex_m::register::msp::read() as usize;
+    let mut p = bottom;
+    while p + 4 <= sp.saturating_sub(PAINT_MARGIN) {
+        // SAFETY: `p` is word-aligned and lies between the end of the statics and a margin
+        // below the stack pointer: RAM that nothing uses yet (no interrupt runs, no frame of a
+        // caller reaches below the current stack pointer).
+        unsafe { core::ptr::write_volatile(p as *mut u32, PAINT) };
+        p += 4;
+    }
+}
+
+/// The deepest the stack has reached since [`paint_stack`], bytes from the top of RAM.
+pub fn stack_used() -> usize {
+    let (bottom, top) = ram_bounds();
+    let mut p = bottom;
+    // SAFETY: `p` is word-aligned RAM between the end of the statics and the top of the
+    // stack; reading it has no side effect.
+    while p < top && unsafe { core::ptr::read_volatile(p as *const u32) } == PAINT {
+        p += 4;
+    }
+    top - p
+}
+
+/// Writes `n` in decimal into `out` from the end; returns where the digits start.
+fn decimal(mut n: usize, out: &mut [u8; 20]) -> usize {
+    let mut at = out.len();
+    loop {
+        at -= 1;
+        if let Some(d) = out.get_mut(at) {
+            *d = b'0' + (n % 10) as u8;
+        }
+        n /= 10;
+        if n == 0 || at == 0 {
+            return at;
+        }
+    }
+}
+
+/// Prints the stack's high water mark on the semihosting console:
+/// `phdose-board: stack N bytes`.
+pub fn report_stack() {
+    let Ok(mut out) = cortex_m_semihosting::hio::hstdout() else { return };
+    let mut digits = [0_u8; 20];
+    let at = decimal(stack_used(), &mut digits);
+    let _ = out.write_all(b"phdose-board: stack ");
+    let _ = out.write_all(digits.get(at..).unwrap_or(&[]));
+    let _ = out.write_all(b" bytes\n");
 }
 
 /// Ends the emulation: exit status 0 when `ok`, else 1 (semihosting; QEMU needs
