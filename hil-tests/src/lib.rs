@@ -141,6 +141,11 @@ impl Board {
     /// Starts the firmware image `elf` in QEMU (`timeout`-wrapped) and connects to its UART.
     /// `name` tells runs apart in the socket's and the log's file names.
     pub fn start(elf: &Path, name: &str) -> Result<Self, HilError> {
+        Self::start_with(elf, name, &[])
+    }
+
+    /// [`Board::start`] with more QEMU arguments (e.g. `-icount shift=0`).
+    pub fn start_with(elf: &Path, name: &str, qemu_args: &[&str]) -> Result<Self, HilError> {
         if !elf.is_file() {
             return Err(HilError::NoFirmware(elf.to_path_buf()));
         }
@@ -160,6 +165,7 @@ impl Board {
             .args(["-machine", "mps2-an386", "-cpu", "cortex-m4", "-display", "none", "-monitor", "none"])
             .args(["-semihosting-config", "enable=on,target=native"])
             .args(["-chardev", &chardev, "-serial", "chardev:s0"])
+            .args(qemu_args)
             .arg("-kernel")
             .arg(elf)
             .stdin(Stdio::null())
@@ -246,7 +252,9 @@ impl Board {
                     .find_map(|l| l.strip_prefix("phdose-board: stack "))
                     .and_then(|rest| rest.split_whitespace().next())
                     .and_then(|n| n.parse().ok());
-                return Ok(Finished { status, stack_bytes, log });
+                let reply_systick =
+                    log.lines().find_map(|l| l.strip_prefix("phdose-board: reply systick ")).and_then(ReplyCost::parse);
+                return Ok(Finished { status, stack_bytes, reply_systick, log });
             }
             if Instant::now() > deadline {
                 return Err(HilError::Qemu("did not exit after the end of the run".into()));
@@ -274,8 +282,41 @@ pub struct Finished {
     pub status: ExitStatus,
     /// The stack's high water mark the firmware reported, bytes.
     pub stack_bytes: Option<usize>,
+    /// The cost of the board's replies in SysTick counts (25 MHz core clock), as it reported.
+    pub reply_systick: Option<ReplyCost>,
     /// QEMU's output.
     pub log: String,
+}
+
+/// SysTick counts from a frame's delimiter to the reply's first byte, over a run (see the
+/// firmware's `mps2` module). Under `-icount shift=0` one count is 40 instructions.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct ReplyCost {
+    /// Replies measured.
+    pub count: u64,
+    /// Fewest counts.
+    pub min: u64,
+    /// Mean counts (rounded down).
+    pub mean: u64,
+    /// Most counts.
+    pub max: u64,
+}
+
+impl ReplyCost {
+    /// Instructions per SysTick count under `-icount shift=0`: 1 ns per instruction, 40 ns per
+    /// count of the 25 MHz clock.
+    pub const INSTRUCTIONS_PER_COUNT: u64 = 40;
+
+    /// Parses `count N min A mean B max C`.
+    fn parse(s: &str) -> Option<Self> {
+        let w: Vec<&str> = s.split_whitespace().collect();
+        match w.as_slice() {
+            ["count", n, "min", a, "mean", b, "max", c] => {
+                Some(Self { count: n.parse().ok()?, min: a.parse().ok()?, mean: b.parse().ok()?, max: c.parse().ok()? })
+            }
+            _ => None,
+        }
+    }
 }
 
 fn connect(socket: &Path) -> Result<UnixStream, HilError> {
@@ -344,8 +385,19 @@ impl Lockstep {
     /// Starts the firmware image `elf` with `config` against the plant of `scenario` (whose
     /// skid must be the configuration's, for the plant's probes and pumps).
     pub fn start(elf: &Path, name: &str, scenario: &Scenario, config: Config<'_>) -> Result<Self, HilError> {
+        Self::start_with(elf, name, scenario, config, &[])
+    }
+
+    /// [`Lockstep::start`] with more QEMU arguments.
+    pub fn start_with(
+        elf: &Path,
+        name: &str,
+        scenario: &Scenario,
+        config: Config<'_>,
+        qemu_args: &[&str],
+    ) -> Result<Self, HilError> {
         let wall = Instant::now();
-        let mut board = Board::start(elf, name)?;
+        let mut board = Board::start_with(elf, name, qemu_args)?;
         let mut hello = board.hello()?;
         let blob = match config {
             Config::BuiltIn => built_in_blob()?,

@@ -113,6 +113,38 @@ fn the_small_mcu_image_runs_the_same_loop() {
     assert!(stack < 48 * 1024, "stack {stack} bytes");
 }
 
+/// The cost of a tick on the board, counted in instructions: QEMU's `-icount shift=0` runs one
+/// instruction per nanosecond of virtual time and the board's SysTick (25 MHz) measures each
+/// reply from the frame's delimiter to the reply's first byte (decode, controller step,
+/// outputs, encode). One hour of the nominal run from raw rinse water, then the same with the
+/// tank starting at the setpoint.
+#[test]
+fn instructions_per_tick_under_icount() {
+    for start_at_setpoint in [false, true] {
+        let mut s = quiet(60.0);
+        s.run.start_at_setpoint = start_at_setpoint;
+        let mut l = Lockstep::start_with(&firmware_elf(), "icount", &s, Config::BuiltIn, &["-icount", "shift=0"])
+            .unwrap_or_else(|e| panic!("{e}"));
+        l.run_until(s.run.duration_s, |_, _| {}).unwrap();
+        assert!(l.records.iter().all(|r| r.board.trip.is_none()));
+        assert_bit_exact(&l);
+        let ticks = l.records.len() as u64;
+        let end = l.finish().unwrap();
+        assert!(end.status.success(), "{}", end.log);
+        let c = end.reply_systick.unwrap_or_else(|| panic!("no cost report: {}", end.log));
+        let k = phdose_hil_tests::ReplyCost::INSTRUCTIONS_PER_COUNT;
+        println!(
+            "instructions per tick (start at setpoint: {start_at_setpoint}): {} ticks, min {}, mean {}, max {} (±{k})",
+            c.count,
+            c.min * k,
+            c.mean * k,
+            c.max * k
+        );
+        assert_eq!(c.count, ticks);
+        assert!(c.min > 0 && c.min <= c.mean && c.mean <= c.max);
+    }
+}
+
 /// The stored blob is the example skid as `phdose pack` writes it (regenerate it when the
 /// example changes: `cargo run -p phdose-host -- pack --out examples/board/skid/plating-rinse.bin
 /// --force`).

@@ -35,6 +35,7 @@ static BUILT_IN_BLOB: &[u8] = include_bytes!("../skid/plating-rinse.bin");
 #[entry]
 fn main() -> ! {
     mps2::paint_stack();
+    mps2::start_clock();
     let mut outputs = Outputs {
         relay: RigPin::default(),
         alarm: RigPin::default(),
@@ -47,6 +48,6 @@ fn main() -> ! {
     let (mut node, hello) = Node::boot(BUILT_IN_BLOB, ConfigSource::BuiltIn);
     let mut deframer = Deframer::new();
     let served = node.serve(hello, &mut uart, &mut outputs, &mut deframer);
-    mps2::report_stack();
+    mps2::report(&uart);
     mps2::end(served.is_ok())
 }

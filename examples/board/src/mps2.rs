@@ -20,6 +20,13 @@
 //!   the firmware (configuration, receive frame, controller) lives on the stack, so this is its
 //!   RAM use beside the statics.
 //!
+//! - **Cost of a tick**: SysTick runs from the core clock (25 MHz on this board); the UART notes
+//!   its count when a frame's delimiter arrives and again when the first byte of the reply
+//!   leaves. Under QEMU's `-icount shift=0` (one instruction per nanosecond of virtual time) one
+//!   SysTick count is 40 instructions, so the counts measure the instructions the firmware
+//!   spends per message (deframe, decode, controller step, outputs, encode); without `-icount`
+//!   they follow the host's speed and mean nothing. Printed at the end of the run.
+//!
 //! This module holds the firmware's only `unsafe` code: volatile accesses to the UART's
 //! registers and to the unused RAM below the stack.
 
@@ -43,9 +50,51 @@ const BAUD_DIVISOR: u32 = 217;
 
 static UART_TAKEN: AtomicBool = AtomicBool::new(false);
 
+/// SysTick counts between a frame's delimiter and the reply's first byte.
+#[derive(Default)]
+struct ReplyCost {
+    since: Option<u32>,
+    count: u32,
+    sum: u64,
+    min: u32,
+    max: u32,
+}
+
+impl ReplyCost {
+    /// SysTick's reload: the full 24 bits (0.67 s at 25 MHz).
+    const RELOAD: u32 = 0x00FF_FFFF;
+
+    fn start(&mut self) {
+        self.since = Some(cortex_m::peripheral::SYST::get_current());
+    }
+
+    fn stop(&mut self) {
+        if let Some(start) = self.since.take() {
+            // SysTick counts down and wraps at 24 bits.
+            let now = cortex_m::peripheral::SYST::get_current();
+            let d = start.wrapping_sub(now) & Self::RELOAD;
+            self.min = if self.count == 0 { d } else { self.min.min(d) };
+            self.max = self.max.max(d);
+            self.sum = self.sum.saturating_add(u64::from(d));
+            self.count = self.count.saturating_add(1);
+        }
+    }
+}
+
+/// Starts SysTick free-running from the core clock (for the cost of a tick, see the module
+/// docs). Does nothing if the core peripherals were taken before.
+pub fn start_clock() {
+    if let Some(mut p) = cortex_m::Peripherals::take() {
+        p.SYST.set_clock_source(cortex_m::peripheral::syst::SystClkSource::Core);
+        p.SYST.set_reload(ReplyCost::RELOAD);
+        p.SYST.clear_current();
+        p.SYST.enable_counter();
+    }
+}
+
 /// UART0, owned: [`Uart::take`] hands it out once.
 pub struct Uart {
-    _owned: (),
+    cost: ReplyCost,
 }
 
 impl Uart {
@@ -54,7 +103,7 @@ impl Uart {
         if UART_TAKEN.swap(true, Ordering::AcqRel) {
             return None;
         }
-        let uart = Self { _owned: () };
+        let uart = Self { cost: ReplyCost::default() };
         uart.write(BAUDDIV, BAUD_DIVISOR);
         uart.write(CTRL, 0b11);
         uart.write(STATE, OVERRUNS);
@@ -78,19 +127,24 @@ impl Uart {
         unsafe { core::ptr::write_volatile(reg, value) }
     }
 
-    fn receive(&self) -> u8 {
+    fn receive(&mut self) -> u8 {
         loop {
             let state = self.read(STATE);
             if state & OVERRUNS != 0 {
                 self.write(STATE, OVERRUNS);
             }
             if state & RX_FULL != 0 {
-                return (self.read(DATA) & 0xFF) as u8;
+                let b = (self.read(DATA) & 0xFF) as u8;
+                if b == 0 {
+                    self.cost.start();
+                }
+                return b;
             }
         }
     }
 
-    fn transmit(&self, byte: u8) {
+    fn transmit(&mut self, byte: u8) {
+        self.cost.stop();
         while self.read(STATE) & TX_FULL != 0 {}
         self.write(DATA, u32::from(byte));
     }
@@ -248,7 +302,7 @@ pub fn stack_used() -> usize {
 }
 
 /// Writes `n` in decimal into `out` from the end; returns where the digits start.
-fn decimal(mut n: usize, out: &mut [u8; 20]) -> usize {
+fn decimal(mut n: u64, out: &mut [u8; 20]) -> usize {
     let mut at = out.len();
     loop {
         at -= 1;
@@ -262,15 +316,24 @@ fn decimal(mut n: usize, out: &mut [u8; 20]) -> usize {
     }
 }
 
-/// Prints the stack's high water mark on the semihosting console:
-/// `phdose-board: stack N bytes`.
-pub fn report_stack() {
+/// Prints the stack's high water mark and the cost of the replies on the semihosting
+/// console: `phdose-board: stack N bytes` and `phdose-board: reply systick count N min A mean B
+/// max C`.
+pub fn report(uart: &Uart) {
     let Ok(mut out) = cortex_m_semihosting::hio::hstdout() else { return };
-    let mut digits = [0_u8; 20];
-    let at = decimal(stack_used(), &mut digits);
-    let _ = out.write_all(b"phdose-board: stack ");
-    let _ = out.write_all(digits.get(at..).unwrap_or(&[]));
-    let _ = out.write_all(b" bytes\n");
+    let mut number = |prefix: &[u8], n: u64| {
+        let mut digits = [0_u8; 20];
+        let at = decimal(n, &mut digits);
+        let _ = out.write_all(prefix);
+        let _ = out.write_all(digits.get(at..).unwrap_or(&[]));
+    };
+    number(b"phdose-board: stack ", stack_used() as u64);
+    number(b" bytes\nphdose-board: reply systick count ", u64::from(uart.cost.count));
+    let c = &uart.cost;
+    number(b" min ", u64::from(c.min));
+    number(b" mean ", c.sum.checked_div(u64::from(c.count)).unwrap_or(0));
+    number(b" max ", u64::from(c.max));
+    let _ = out.write_all(b"\n");
 }
 
 /// Ends the emulation: exit status 0 when `ok`, else 1 (semihosting; QEMU needs
