@@ -87,6 +87,7 @@ do_doc() {
     step "rustdoc"
     RUSTDOCFLAGS="-D warnings" cargo doc -p phdose --no-deps --features defmt
     RUSTDOCFLAGS="-D warnings" cargo doc -p phdose-sim --no-deps
+    RUSTDOCFLAGS="-D warnings" cargo doc -p phdose-link --no-deps
 }
 
 do_bench() {
