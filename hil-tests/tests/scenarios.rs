@@ -254,6 +254,8 @@ fn failed_probes_warn_then_trip() {
     let trip = first_trip(&l);
     assert_eq!(trip.board.trip.map(|t| t.code), Some(TripReason::ProbeFault.code()));
     assert!((trip.t_s - 900.0).abs() < 1e-6, "tripped at {} s", trip.t_s);
+    let (low, high) = (f64::from(s.skid.control.low_limit_ph), f64::from(s.skid.control.high_limit_ph));
+    assert!(l.records.iter().all(|r| r.ph_range.0 > low && r.ph_range.1 < high));
     assert_off_after(&l, trip.sent.tick);
     assert_bit_exact(&l);
     assert!(l.finish().unwrap().status.success());
