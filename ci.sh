@@ -9,6 +9,10 @@
 #   ./ci.sh doc      rustdoc with warnings denied
 #   ./ci.sh bench    compile the criterion benches (run them with `cargo bench`)
 #   ./ci.sh fuzz     short cargo-fuzz smoke run of every target (needs a nightly toolchain)
+#   ./ci.sh firmware the board firmware (examples/board), release, for the emulated board's memory
+#                    map and a small MCU's (256 KiB flash / 64 KiB RAM), with their sizes
+#   ./ci.sh hil      the firmware in QEMU in lockstep with the plant simulator (hil-tests/); installs
+#                    qemu-system-arm with apt-get when it is missing
 #   ./ci.sh test     unit, integration, property, reference and CLI tests
 set -euo pipefail
 cd "$(dirname "$0")"
@@ -37,6 +41,8 @@ do_fmt() {
     step "rustfmt"
     cargo fmt --all -- --check
     (cd tools/no-panic && cargo fmt -- --check)
+    (cd examples/board && cargo fmt -- --check)
+    (cd hil-tests && cargo fmt -- --check)
 }
 
 do_clippy() {
@@ -46,6 +52,13 @@ do_clippy() {
     done
     step "clippy workspace"
     cargo clippy --workspace --all-targets -- -D warnings
+    step "clippy phdose-link (thumbv7em-none-eabihf)"
+    ensure_targets
+    cargo clippy -p phdose-link --target thumbv7em-none-eabihf -- -D warnings
+    step "clippy board firmware (thumbv7em-none-eabihf, release)"
+    (cd examples/board && CARGO_TARGET_DIR="$PWD/target" cargo clippy --release -- -D warnings)
+    step "clippy hil-tests"
+    (cd hil-tests && cargo clippy --release --all-targets -- -D warnings)
 }
 
 do_thumb() {
@@ -74,6 +87,7 @@ do_doc() {
     step "rustdoc"
     RUSTDOCFLAGS="-D warnings" cargo doc -p phdose --no-deps --features defmt
     RUSTDOCFLAGS="-D warnings" cargo doc -p phdose-sim --no-deps
+    RUSTDOCFLAGS="-D warnings" cargo doc -p phdose-link --no-deps
 }
 
 do_bench() {
@@ -87,6 +101,41 @@ do_fuzz() {
     bash fuzz/smoke.sh "${FUZZ_SECONDS:-120}"
 }
 
+# Debian packages a step needs: installed with apt-get when the command is missing (CI runs as
+# root; elsewhere sudo is tried).
+ensure_apt() {
+    local cmd="$1" pkg="$2"
+    command -v "$cmd" >/dev/null 2>&1 && return 0
+    step "apt-get install $pkg (for $cmd)"
+    local sudo=""
+    [ "$(id -u)" -eq 0 ] || sudo="sudo"
+    $sudo apt-get update -qq
+    DEBIAN_FRONTEND=noninteractive $sudo apt-get install -y -qq --no-install-recommends "$pkg"
+}
+
+# The firmware image for the emulated board (mps2-an386: 4 MiB code, 4 MiB RAM) and the same
+# firmware linked for a small MCU (256 KiB flash, 64 KiB RAM; target/mcu). Release only: the
+# image links with panic-never, which proves that nothing in it can panic.
+do_firmware() {
+    ensure_targets
+    ensure_apt arm-none-eabi-size binutils-arm-none-eabi
+    step "build board firmware (release, QEMU mps2-an386 map)"
+    # Fixed output folders (whatever CARGO_TARGET_DIR says): hil-tests looks for the images there.
+    (cd examples/board && CARGO_TARGET_DIR="$PWD/target" cargo build --release)
+    step "build board firmware (release, small MCU map: 256 KiB flash, 64 KiB RAM)"
+    (cd examples/board && PHDOSE_BOARD_MEMORY=mcu CARGO_TARGET_DIR="$PWD/target/mcu" cargo build --release)
+    step "firmware size (text = flash; data + bss = static RAM; the stack comes on top: ./ci.sh hil reports it)"
+    arm-none-eabi-size examples/board/target/thumbv7em-none-eabihf/release/phdose-board \
+        examples/board/target/mcu/thumbv7em-none-eabihf/release/phdose-board
+}
+
+do_hil() {
+    ensure_apt qemu-system-arm qemu-system-arm
+    do_firmware
+    step "hardware-in-the-loop tests (QEMU mps2-an386 + plant simulator, lockstep)"
+    (cd hil-tests && cargo test --release -- --nocapture)
+}
+
 do_test() {
     # The core is tested as it ships: no default features, each feature set on its own (the
     # host crate is a separate `cargo test -p`, so its dependencies cannot switch anything on).
@@ -98,6 +147,8 @@ do_test() {
     cargo test -p phdose-sim --release
     step "tests phdose-host (CLI)"
     cargo test -p phdose-host
+    step "tests phdose-link (board link: framing, messages, round trips)"
+    cargo test -p phdose-link
 }
 
 case "${1:-all}" in
@@ -108,6 +159,8 @@ case "${1:-all}" in
     doc) do_doc ;;
     bench) do_bench ;;
     fuzz) do_fuzz ;;
+    firmware) do_firmware ;;
+    hil) do_hil ;;
     test) do_test ;;
     all)
         do_fmt
@@ -117,10 +170,11 @@ case "${1:-all}" in
         do_doc
         do_bench
         do_fuzz
+        do_hil
         do_test
         ;;
     *)
-        echo "usage: $0 [all|fmt|clippy|thumb|nopanic|doc|bench|fuzz|test]" >&2
+        echo "usage: $0 [all|fmt|clippy|thumb|nopanic|doc|bench|fuzz|firmware|hil|test]" >&2
         exit 2
         ;;
 esac

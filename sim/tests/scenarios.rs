@@ -94,3 +94,29 @@ fn a_different_true_influent_still_converges_to_the_band() {
     assert!((mean - sp).abs() <= 0.1 * half, "mean pH {mean} off the setpoint");
     assert!(t.trips.is_empty(), "{:?}", t.trips);
 }
+
+/// The rig stepped from outside (as the hardware-in-the-loop harness does): the relay powers
+/// the pumps, a stuck pump included. With the relay open nothing arrives whatever the pumps
+/// are told; closed, the stuck caustic pump delivers its maximum (10 L/h in the example skid)
+/// times the plant's delivery factor (0.97 in the built-in scenario) after the line's delay.
+#[test]
+fn the_rig_stepped_from_outside_obeys_the_relay() {
+    let mut s = quiet();
+    s.plant.caustic_stuck_on_at_s = Some(0.0);
+    let mut rig = phdose_sim::run::Rig::new(&s, None).unwrap();
+    let tick = rig.tick_s();
+    for _ in 0..10 {
+        let sensed = rig.sense().unwrap();
+        assert!(sensed.flow_switch());
+        assert!(sensed.probe_mv[0].is_finite() && sensed.probe_mv[1].is_finite() && sensed.probe_mv[2].is_nan());
+        let a = rig.advance([3.0, 0.0], false).unwrap();
+        assert_eq!(a.reagent_l_per_h, [0.0, 0.0]);
+    }
+    assert!((rig.time_s() - 10.0 * tick).abs() < 1e-9);
+    let mut last = [0.0; 2];
+    for _ in 0..10 {
+        rig.sense().unwrap();
+        last = rig.advance([0.0, 0.0], true).unwrap().reagent_l_per_h;
+    }
+    assert!((last[0] - 10.0 * 0.97).abs() < 1e-9, "{last:?}");
+}
