@@ -16,7 +16,9 @@
 //!    limit (else the guard would trip in normal operation); at the design flow, acid dosed to
 //!    the setpoint must not release chlorine or hydrogen sulfide from the influent (errors 219,
 //!    220; see [`crate::titration::hazard`]); a dose above zero but below the pump's smallest
-//!    steady flow (its minimum or one step) is a warning (305);
+//!    steady flow (its minimum or one step) is a warning (305); at the design flow, the dosing
+//!    pump stuck at its maximum crossing the hard limit on its side sooner than the runaway
+//!    interlock's off time is a warning (306; [`crate::titration::worst`], ideal mixing);
 //! 5. the probes: one to three, each calibration accepted (slope and offset, see
 //!    [`crate::probe`]); old calibrations and a single probe are warnings.
 //!
@@ -34,7 +36,8 @@ use crate::control::regulator::{Regulator, RegulatorError};
 use crate::real::Real;
 use crate::titration::dose::{DoseCheck, DoseError, DoseRequest, plan};
 use crate::titration::hazard::Gas;
-use crate::units::{Celsius, LitresPerHour};
+use crate::titration::worst::{Crossing, HardLimits, Tank, stuck};
+use crate::units::{Celsius, LitresPerHour, TankVolume};
 
 /// What a finding is about. Codes 2xx are errors (dosing refused), 3xx warnings.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -95,11 +98,17 @@ pub enum Code {
     /// 305: the dose at a configured flow is above zero but below the pump's smallest steady
     /// flow (its minimum or one step; see `DoseCheck::BelowTurndown`): the pump can only pulse it.
     BelowTurndown,
+    /// 306: the dosing pump stuck at its maximum would take the tank across the hard limit on
+    /// its side sooner than the runaway interlock can act (value: the time, s, from the setpoint
+    /// state at the design flow, ideal mixing, [`crate::titration::worst`]; limit:
+    /// `interlocks.runaway_off_s`): the hard-limit trip and the hardwired cut-out are then the
+    /// first protection against a stuck pump.
+    StuckPumpOutrunsRunaway,
 }
 
 impl Code {
     /// Every code, errors (2xx) then warnings (3xx), in number order.
-    pub const ALL: [Self; 25] = [
+    pub const ALL: [Self; 26] = [
         Self::BlobUnreadable,
         Self::SettingOutOfRange,
         Self::FlowsInconsistent,
@@ -125,6 +134,7 @@ impl Code {
         Self::ResolutionLimited,
         Self::SingleProbe,
         Self::BelowTurndown,
+        Self::StuckPumpOutrunsRunaway,
     ];
 
     /// The stable numeric code.
@@ -155,6 +165,7 @@ impl Code {
             Self::ResolutionLimited => 303,
             Self::SingleProbe => 304,
             Self::BelowTurndown => 305,
+            Self::StuckPumpOutrunsRunaway => 306,
         }
     }
 
@@ -193,6 +204,7 @@ impl Code {
             Self::ResolutionLimited => "working precision cannot resolve the plan",
             Self::SingleProbe => "single probe: no redundancy",
             Self::BelowTurndown => "dose below the pump's smallest steady flow (minimum or one step)",
+            Self::StuckPumpOutrunsRunaway => "pump stuck at maximum crosses a hard limit before the runaway trip",
         }
     }
 }
@@ -550,6 +562,9 @@ fn dose_checks<R: Real>(
                         DoseCheck::GasRelease { .. } | DoseCheck::ReagentCrystallises { .. } => {}
                     }
                 }
+                if at_design {
+                    stuck_pump_check(report, skid, influent, q, &reagent.solution, drive.max_l_per_h(), &p, side, name);
+                }
                 if flow == i.max_flow_l_per_h {
                     // The hourly guard must let the dose of the largest flow through.
                     let per_hour = p.reagent_flow_l_per_h.to_f64();
@@ -575,6 +590,44 @@ fn dose_checks<R: Real>(
                 report.push(Finding::named(Code::Unreachable, name, f64::from(flow), limit));
             }
         }
+    }
+}
+
+/// Warning 306: the time the tank takes, from the setpoint state at the design flow, to cross
+/// the hard limit on the dosing pump's side (high for caustic, low for acid) with that pump
+/// stuck at its maximum (`worst::stuck`, ideal mixing of the whole tank: the fastest the pH can
+/// move), compared with the runaway interlock's off time. At most
+/// [`crate::titration::worst::MAX_SOLVES_PER_CASE`] pH solves. A case the model cannot work
+/// out adds nothing (the dose checks above already report an unplannable setpoint).
+#[allow(clippy::too_many_arguments)]
+fn stuck_pump_check<R: Real, const M: usize>(
+    report: &mut BootReport,
+    skid: &Skid,
+    influent: &crate::chem::Solution<R, MODEL_SYSTEMS>,
+    influent_flow: LitresPerHour<R>,
+    reagent: &crate::chem::Solution<R, M>,
+    pump_max_l_per_h: R,
+    planned: &crate::titration::dose::DosePlan<R>,
+    side: usize,
+    name: &'static str,
+) {
+    let c = &skid.control;
+    let (Ok(max), Ok(planned_flow), Ok(volume), Ok(limits)) = (
+        LitresPerHour::new(pump_max_l_per_h),
+        LitresPerHour::new(planned.reagent_flow_l_per_h),
+        TankVolume::new(r::<R>(c.tank_volume_l)),
+        HardLimits::new(Some(r::<R>(c.low_limit_ph)), Some(r::<R>(c.high_limit_ph))),
+    ) else {
+        return;
+    };
+    let tank = Tank { volume, planned_reagent_flow: planned_flow };
+    let Ok(s) = stuck(influent, influent_flow, reagent, max, limits, Some(tank)) else { return };
+    let crossing = if side == 0 { s.high_limit } else { s.low_limit };
+    let off_s = f64::from(skid.interlocks.runaway_off_s);
+    if let Some(Crossing::After { time_s }) = crossing
+        && time_s.to_f64() < off_s
+    {
+        report.push(Finding::named(Code::StuckPumpOutrunsRunaway, name, time_s.to_f64(), off_s));
     }
 }
 

@@ -220,3 +220,32 @@ fn a_dose_below_the_pump_turndown_is_a_warning() {
         "{r:?}"
     );
 }
+
+#[test]
+fn a_stuck_pump_that_outruns_the_runaway_interlock_is_a_warning() {
+    // The example's 10 L/h caustic pump is about 24 times its planned dose: stuck at full flow,
+    // the ideally mixed 250 L tank crosses the high limit (pH 10) about 7 s after leaving the
+    // setpoint, long before the runaway interlock's 40 s.
+    let skid = example::plating_rinse();
+    let times: std::vec::Vec<f64> = [check::<f32>(&skid), check::<f64>(&skid)]
+        .iter()
+        .map(|r| {
+            let f = r.warnings.iter().find(|f| f.code == Code::StuckPumpOutrunsRunaway).expect("warning 306");
+            assert_eq!((f.name, f.limit), ("caustic", 40.0), "{f:?}");
+            assert!(f.value > 0.0 && f.value < 40.0, "{f:?}");
+            f.value
+        })
+        .collect();
+    assert!((times[0] / times[1] - 1.0).abs() < 1e-2, "f32 {} vs f64 {}", times[0], times[1]);
+    // The model's times scale with the tank's volume (τ = V/Q): four times the volume, four
+    // times the time, still under 40 s.
+    let mut bigger = example::plating_rinse();
+    bigger.control.tank_volume_l *= 4.0;
+    let r = check::<f64>(&bigger);
+    let f = r.warnings.iter().find(|f| f.code == Code::StuckPumpOutrunsRunaway).expect("warning 306");
+    assert!((f.value / (4.0 * times[1]) - 1.0).abs() < 1e-3, "{} vs 4 × {}", f.value, times[1]);
+    // Ten times the volume: about 70 s, after the interlock's 40 s: no warning.
+    let mut large = example::plating_rinse();
+    large.control.tank_volume_l *= 10.0;
+    assert!(!check::<f64>(&large).has(Code::StuckPumpOutrunsRunaway));
+}

@@ -11,7 +11,7 @@ use crate::cli::json::Num;
 const LABEL: usize = 20;
 
 /// Every boot-check code, errors (2xx) then warnings (3xx), for `check --help` and README.
-pub const CODES: [Code; 25] = Code::ALL;
+pub const CODES: [Code; 26] = Code::ALL;
 
 /// The codes as text lines, "  201  configuration blob unreadable" (for `check --help`).
 pub fn code_lines() -> String {
