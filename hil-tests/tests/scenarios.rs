@@ -159,6 +159,12 @@ fn first_trip(l: &Lockstep) -> &phdose_hil_tests::Record {
 }
 
 /// After the trip tick: relay open, no pump driven, nothing reaching the plant's pumps.
+/// The true tank pH stayed strictly inside the skid's hard limits on every tick.
+fn assert_inside_limits(l: &Lockstep, s: &Scenario) {
+    let (low, high) = (f64::from(s.skid.control.low_limit_ph), f64::from(s.skid.control.high_limit_ph));
+    assert!(l.records.iter().all(|r| r.ph_range.0 > low && r.ph_range.1 < high));
+}
+
 fn assert_off_after(l: &Lockstep, trip_tick: u32) {
     for r in l.records.iter().filter(|r| r.sent.tick >= trip_tick) {
         assert_eq!(r.board.state, State::Tripped, "tick {}", r.sent.tick);
@@ -216,8 +222,7 @@ fn lost_flow_trips_at_once() {
     assert_eq!(trip.board.trip.map(|t| t.code), Some(TripReason::NoFlow.code()));
     assert!(!trip.sent.flow_switch);
     assert!((trip.t_s - 600.0).abs() < 1e-6, "tripped at {} s", trip.t_s);
-    let (low, high) = (f64::from(s.skid.control.low_limit_ph), f64::from(s.skid.control.high_limit_ph));
-    assert!(l.records.iter().all(|r| r.ph_range.0 > low && r.ph_range.1 < high));
+    assert_inside_limits(&l, &s);
     assert_off_after(&l, trip.sent.tick);
     assert_bit_exact(&l);
     assert!(l.finish().unwrap().status.success());
@@ -254,8 +259,7 @@ fn failed_probes_warn_then_trip() {
     let trip = first_trip(&l);
     assert_eq!(trip.board.trip.map(|t| t.code), Some(TripReason::ProbeFault.code()));
     assert!((trip.t_s - 900.0).abs() < 1e-6, "tripped at {} s", trip.t_s);
-    let (low, high) = (f64::from(s.skid.control.low_limit_ph), f64::from(s.skid.control.high_limit_ph));
-    assert!(l.records.iter().all(|r| r.ph_range.0 > low && r.ph_range.1 < high));
+    assert_inside_limits(&l, &s);
     assert_off_after(&l, trip.sent.tick);
     assert_bit_exact(&l);
     assert!(l.finish().unwrap().status.success());

@@ -435,29 +435,34 @@ fn a_fit_stopped_by_the_iteration_cap_is_refused_with_exit_1() {
 /// are refused as input (exit 2), with the volume and the bound named.
 #[test]
 fn impossible_titrant_volumes_are_refused() {
-    let dir = scratch("fit-huge");
-    let path = dir.join("huge.csv");
-    std::fs::write(&path, "titrant_ml,ph\n0,9.0\n1,8.0\n2,7.0\n1e308,3.0\n1e308,2.9\n1e308,2.8\n").unwrap();
-    let e = table_error(&["fit", "--data", path.to_str().unwrap(), "--titrant", "HCl=0.04", "--sample-ml", "50"]);
+    let points = [(0.0, 9.0), (1.0, 8.0), (2.0, 7.0), (1e308, 3.0), (1e308, 2.9), (1e308, 2.8)];
+    let (e, msg) = bad_points_errors("fit-huge", &points);
     assert!(e.contains("1e308") && e.contains("sample"), "{e}");
-    let request = r#"{"sample_volume_ml": 50, "titrant": {"dissolved": {"HCl": 0.04}},
-        "points": [[0, 9.0], [1, 8.0], [2, 7.0], [1e308, 3.0], [1e308, 2.9], [1e308, 2.8]]}"#;
-    let msg = json_error(&["fit", "--json"], request);
     assert!(msg.contains("1e308") && msg.contains("sample"), "{msg}");
+}
+
+/// The input errors (exit 2) for these lab points on a 50 mL sample titrated with 0.04 mol/L
+/// HCl: as a CSV file (the table's message) and as a JSON request (the error document's).
+fn bad_points_errors(name: &str, points: &[(f64, f64)]) -> (String, String) {
+    let path = scratch(name).join("lab.csv");
+    let rows: Vec<String> = points.iter().map(|(v, ph)| format!("{v},{ph}")).collect();
+    std::fs::write(&path, format!("titrant_ml,ph\n{}\n", rows.join("\n"))).unwrap();
+    let e = table_error(&["fit", "--data", path.to_str().unwrap(), "--titrant", "HCl=0.04", "--sample-ml", "50"]);
+    let pairs: Vec<String> = points.iter().map(|(v, ph)| format!("[{v:e}, {ph}]")).collect();
+    let request = format!(
+        r#"{{"sample_volume_ml": 50, "titrant": {{"dissolved": {{"HCl": 0.04}}}}, "points": [{}]}}"#,
+        pairs.join(", ")
+    );
+    (e, json_error(&["fit", "--json"], &request))
 }
 
 /// Volumes out of order were silently sorted; a lab sheet out of order is more likely a typing
 /// error than a reordering, so it is refused (exit 2) with the line.
 #[test]
 fn volumes_out_of_order_are_refused() {
-    let dir = scratch("fit-order");
-    let path = dir.join("order.csv");
-    std::fs::write(&path, "titrant_ml,ph\n0,9.0\n1,8.0\n3,6.0\n2,7.0\n4,5.0\n5,4.0\n").unwrap();
-    let e = table_error(&["fit", "--data", path.to_str().unwrap(), "--titrant", "HCl=0.04", "--sample-ml", "50"]);
+    let points = [(0.0, 9.0), (1.0, 8.0), (3.0, 6.0), (2.0, 7.0), (4.0, 5.0), (5.0, 4.0)];
+    let (e, msg) = bad_points_errors("fit-order", &points);
     assert!(e.contains("line 5") && e.contains("order"), "{e}");
-    let request = r#"{"sample_volume_ml": 50, "titrant": {"dissolved": {"HCl": 0.04}},
-        "points": [[0, 9.0], [1, 8.0], [3, 6.0], [2, 7.0], [4, 5.0], [5, 4.0]]}"#;
-    let msg = json_error(&["fit", "--json"], request);
     assert!(msg.contains("points[3]") && msg.contains("order"), "{msg}");
 }
 

@@ -453,13 +453,25 @@ fn to_effective<R: Real>(p: &[R; MAX_PARAMETERS], layout: Layout) -> Effective<R
 fn model_sample<R: Real>(p: &[R; MAX_PARAMETERS], layout: Layout, spec: &FitSpec<R>) -> Result<Sample<R>, FitError> {
     let mut s: Sample<R> =
         to_effective(p, layout).solution(spec.temperature, spec.activity).map_err(|_| FitError::ModelFailed)?;
-    let inert = spec.inert_ionic_strength_mol_per_l;
-    if inert > R::ZERO {
-        // A 1:1 salt of concentration c has ionic strength c and no net charge.
-        s.add_strong_ion(1, inert).map_err(|_| FitError::ModelFailed)?;
-        s.add_strong_ion(-1, inert).map_err(|_| FitError::ModelFailed)?;
-    }
+    add_inert_salt(&mut s, spec.inert_ionic_strength_mol_per_l).map_err(|_| FitError::ModelFailed)?;
     Ok(s)
+}
+
+/// Adds the inert salts of [`FitSpec::inert_ionic_strength_mol_per_l`] to a model solution, as
+/// the fit's model holds them: a 1:1 salt of that concentration (ionic strength equal to it, no
+/// net charge). Nothing for 0 or less.
+///
+/// # Errors
+/// As [`Solution::add_strong_ion`] (a value that is not finite, or beyond the solution's limits).
+pub fn add_inert_salt<R: Real, const N: usize>(
+    solution: &mut Solution<R, N>,
+    ionic_strength_mol_per_l: R,
+) -> Result<(), CompositionError> {
+    if ionic_strength_mol_per_l > R::ZERO {
+        solution.add_strong_ion(1, ionic_strength_mol_per_l)?;
+        solution.add_strong_ion(-1, ionic_strength_mol_per_l)?;
+    }
+    Ok(())
 }
 
 fn clamp_parameters<R: Real>(p: &mut [R; MAX_PARAMETERS]) {

@@ -215,12 +215,7 @@ pub fn compute(input: FitInput) -> Result<FitReport, CliError> {
         }
         let model_error = |e| CliError::new(format!("fitted model: {e}"));
         let mut sample: Solution<f64, 8> = result.effective.solution(c.temperature, c.activity).map_err(model_error)?;
-        // The inert salts, as the fit's model holds them: a 1:1 salt of that ionic strength.
-        let inert = u.inert_ionic_strength_mol_per_l;
-        if inert > 0.0 {
-            sample.add_strong_ion(1, inert).map_err(model_error)?;
-            sample.add_strong_ion(-1, inert).map_err(model_error)?;
-        }
+        fit::add_inert_salt(&mut sample, u.inert_ionic_strength_mol_per_l).map_err(model_error)?;
         let t = Titration { sample: &sample, sample_volume_l: input.sample_volume_l, titrant: &titrant };
         let mut out: FixedVec<CurvePoint<f64>, MODEL_CURVE_POINTS> = FixedVec::new();
         t.curve(max_l, &mut out).map_err(|e| CliError::new(format!("fitted model curve: {e}")))?;
