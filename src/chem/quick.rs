@@ -46,12 +46,8 @@ pub const MAX_PK: f64 = 100.0;
 /// Largest pH step of one quick iteration.
 const MAX_STEP_PH: f64 = 4.0;
 
-/// Constants of one solve, computed once per solve instead of once per evaluation: each
-/// component's step constants K_j = 10^(−pK_j) and Kw = 10^(−pKw).
-pub(crate) struct Constants<R> {
-    ka: [[R; MAX_STEPS]; MAX_SYSTEMS],
-    kw: R,
-}
+/// Ka of every step of every component of one solve (rows in the components' order).
+pub(crate) type StepConstants<R> = heapless::Vec<[R; MAX_STEPS], MAX_SYSTEMS>;
 
 /// What the quick path reads of a solution, without its capacity: the quick path's code is
 /// compiled once per real type instead of once per solution capacity (it is most of the
@@ -61,6 +57,7 @@ pub(crate) struct View<'a, R: Real> {
     strong_charge_eq_per_l: R,
     strong_ionic_strength_mol_per_l: R,
     pkw: R,
+    kw: R,
     debye_huckel_a: R,
     davies: bool,
 }
@@ -73,6 +70,7 @@ impl<R: Real, const N: usize> Solution<R, N> {
             strong_charge_eq_per_l: self.strong_charge_eq_per_l(),
             strong_ionic_strength_mol_per_l: self.strong_ionic_strength_mol_per_l(),
             pkw: self.pkw(),
+            kw: self.kw(),
             debye_huckel_a: self.debye_huckel_a(),
             davies: self.activity() == super::activity::Activity::Davies,
         }
@@ -101,44 +99,94 @@ fn pow_int<R: Real>(base: R, exponent: i32) -> R {
     if exponent < 0 { R::ONE / acc } else { acc }
 }
 
-/// Alpha fractions of a component from the ratios of neighbouring forms,
+/// Unnormalised amounts of a component's forms, d_0 = 1 and d_j = d_{j−1}·[A_j]/[A_{j−1}] with
 /// [A_j]/[A_{j−1}] = K_j·10^pH·10^(−φ·(2·z_{j−1} − 1)), as products: no exponential per form.
-/// `inv_h` = 10^pH, `big_g` = 10^φ (φ the Davies factor).
+/// `inv_h` = 10^pH, `big_g` = 10^φ, `inv_g` = 10^−φ (φ the Davies factor). Entries past the
+/// component's steps are 0.
 ///
 /// With `fast-math`, `f32`'s exponential is an approximation (about 2e-3 relative): there each
 /// ratio is one exponential of its whole exponent, as in the nested solve, instead of a product
 /// of three approximations (`x` and `af` are the pH and the Davies factor for that case).
-fn alphas_from_ratios<R: Real>(
+fn form_weights<R: Real>(
     c: &Component<R>,
     ka: &[R; MAX_STEPS],
-    (inv_h, big_g): (R, R),
+    (inv_h, big_g, inv_g): (R, R, R),
     (x, af): (R, R),
 ) -> [R; MAX_STEPS + 1] {
     let approximate_exp = cfg!(feature = "fast-math") && R::RELATIVE_PRECISION > 1e-10;
     let n = c.system.step_count();
     let cap = ratio_cap::<R>();
+    let z0 = c.system.charge_of_form(0);
+    // 10^(−φ·(2·z_{j−1} − 1)) for j = 1: G^(1 − 2·z0); each further step multiplies by G².
+    let mut activity = match 1 - 2 * z0 {
+        1 => big_g,
+        -1 => inv_g,
+        e => pow_int(big_g, e),
+    };
+    let g2 = big_g * big_g;
     let mut d = [R::ZERO; MAX_STEPS + 1];
     let mut product = R::ONE;
-    let mut sum = R::ONE;
     if let Some(first) = d.get_mut(0) {
         *first = R::ONE;
     }
     for (j, (slot, k)) in d.iter_mut().skip(1).zip(ka.iter()).enumerate().take(n) {
-        let z_prev = c.system.charge_of_form(j);
         let raw = if approximate_exp {
+            let z_prev = c.system.charge_of_form(j);
             (x - crate::invariant::at(&c.pk, j) - af * R::from_i32(2 * z_prev - 1)).exp10()
         } else {
-            *k * inv_h * pow_int(big_g, 1 - 2 * z_prev)
+            *k * inv_h * activity
         };
-        let ratio = raw.max(R::ZERO).min(cap);
-        product *= ratio;
+        activity *= g2;
+        product *= raw.max(R::ZERO).min(cap);
         *slot = product;
-        sum += product;
-    }
-    for v in d.iter_mut().take(n + 1) {
-        *v = *v / sum;
     }
     d
+}
+
+/// The distribution of a component's proton-loss number j over its forms: mean n̄ and central
+/// moments μ2 (variance), μ3, μ4, from the unnormalised form amounts `d` (`n` steps). Taken about
+/// the most abundant form (the raw moments of j − j_max are small where one form dominates, so
+/// the central moments keep their relative precision there), one division.
+#[derive(Clone, Copy)]
+struct Moments<R> {
+    mean: R,
+    var: R,
+    mu3: R,
+    mu4: R,
+    /// 1 / Σ d_j (the normalisation of the form amounts).
+    inv_sum: R,
+}
+
+fn moments<R: Real>(d: &[R; MAX_STEPS + 1], n: usize) -> Moments<R> {
+    let mut top = 0_i32;
+    let mut best = R::ZERO;
+    for (j, v) in (0_i32..).zip(d.iter()).take(n + 1) {
+        if *v > best {
+            best = *v;
+            top = j;
+        }
+    }
+    let (mut s0, mut s1, mut s2, mut s3, mut s4) = (R::ZERO, R::ZERO, R::ZERO, R::ZERO, R::ZERO);
+    for (j, v) in (0_i32..).zip(d.iter()).take(n + 1) {
+        let t = R::from_i32(j - top);
+        let t2 = t * t;
+        s0 += *v;
+        s1 += t * *v;
+        s2 += t2 * *v;
+        s3 += t2 * t * *v;
+        s4 += t2 * t2 * *v;
+    }
+    let inv_sum = R::ONE / s0;
+    let (e1, e2, e3, e4) = (s1 * inv_sum, s2 * inv_sum, s3 * inv_sum, s4 * inv_sum);
+    let e1s = e1 * e1;
+    let (three, four, six) = (R::from_f64(3.0), R::from_f64(4.0), R::from_f64(6.0));
+    Moments {
+        mean: R::from_i32(top) + e1,
+        var: (e2 - e1s).max(R::ZERO),
+        mu3: e3 - three * e1 * e2 + R::from_f64(2.0) * e1 * e1s,
+        mu4: e4 - four * e1 * e3 + six * e1s * e2 - three * e1s * e1s,
+        inv_sum,
+    }
 }
 
 /// ln(P/N). Near the root (|u| ≤ 0.1 with u = (P − N)/(P + N)) by the series
@@ -202,8 +250,12 @@ impl<R: Real> View<'_, R> {
     /// magnitudes of every charge term (`Equilibrium::resolution_ph`). One pass over the
     /// components, no exponentials beyond H⁺ and OH⁻.
     pub(crate) fn resolution(&self, ph: R, af: R, beta: R) -> R {
-        let mut scale = (af - ph).exp10() + (ph - self.pkw + af).exp10();
-        scale += R::from_f64(2.0) * self.strong_ionic_strength_mol_per_l;
+        self.resolution_from_water((af - ph).exp10() + (ph - self.pkw + af).exp10(), beta)
+    }
+
+    /// The same from [H⁺] + [OH⁻] (`water`, mol/L) as an evaluation already has it: no exponential.
+    pub(crate) fn resolution_from_water(&self, water: R, beta: R) -> R {
+        let mut scale = water + R::from_f64(2.0) * self.strong_ionic_strength_mol_per_l;
         for c in self.components {
             let z0 = c.system.charge_of_form(0);
             let z_last = z0 - i32::from(c.system.steps);
@@ -213,42 +265,60 @@ impl<R: Real> View<'_, R> {
         if beta > R::ZERO { epsilon * scale / beta } else { R::from_f64(f64::INFINITY) }
     }
 
-    /// The constants of one solve (one exponential per step, and one for Kw).
-    /// `None` when a step constant is not finite or beyond ±[`MAX_PK`] (no chemistry has
-    /// one): such a solution goes to the nested solve, which refuses or solves it as it always did.
-    pub(crate) fn constants(&self) -> Option<Constants<R>> {
-        let mut ka = [[R::ZERO; MAX_STEPS]; MAX_SYSTEMS];
+    /// The step constants of one solve, Ka = 10^−pKa of every step of every component (one
+    /// exponential each; Kw is cached by the solution). `None` when a pKa is not finite or beyond
+    /// ±[`MAX_PK`] (no chemistry has one): such a solution goes to the nested solve, which refuses
+    /// or solves it as it always did. Only the components' rows are written (no array to clear).
+    pub(crate) fn step_constants(&self) -> Option<StepConstants<R>> {
+        let mut rows = StepConstants::new();
         let limit = R::from_f64(MAX_PK);
-        for (row, c) in ka.iter_mut().zip(self.components) {
+        for c in self.components {
+            let mut row = [R::ZERO; MAX_STEPS];
             for (k, pk) in row.iter_mut().zip(c.pk.iter()).take(c.system.step_count()) {
                 if !(pk.is_finite() && pk.abs() <= limit) {
                     return None;
                 }
                 *k = (-*pk).exp10();
             }
+            rows.push(row).ok()?;
         }
-        Some(Constants { ka, kw: (-self.pkw).exp10() })
+        Some(rows)
     }
 
     /// The log charge ratio and its derivatives at pH `x` with Davies factor `af`: two
     /// exponentials (10^−pH and 10^φ) and one logarithm, the rest products.
-    pub(crate) fn evaluate_log(&self, x: R, af: R, k: &Constants<R>) -> LogEval<R> {
+    ///
+    /// Per component, every quantity comes from the moments of its proton-loss number j (see
+    /// [`Moments`]). For a system whose most protonated form carries no positive charge (z0 ≤ 0:
+    /// every catalogue system but ammonium), every form sits on the negative side with |z| = j − z0,
+    /// so with m = n̄ − z0 its terms are: N = C·m, dN/dpH = ln10·C·μ2, d²N/dpH² = ln10²·C·μ3,
+    /// d³N/dpH³ = ln10³·C·(μ4 − 3·μ2²); ∂N/∂φ = ln10·C·(2·m·μ2 + μ3); Σ z²·[A_j] = C·(m² + μ2),
+    /// its pH derivative ln10·C·(2·m·μ2 + μ3) and its φ derivative
+    /// ln10·C·(4·m²·μ2 + 4·m·μ3 + μ4 − μ2²) (C the total). A system with a positive form is summed
+    /// form by form.
+    pub(crate) fn evaluate_log(&self, x: R, af: R, ka: &[[R; MAX_STEPS]]) -> LogEval<R> {
         let ln10 = R::LN_10;
         let ln10_2 = ln10 * ln10;
+        let ln10_3 = ln10_2 * ln10;
+        let davies = self.davies;
         // [H+] = 10^(φ − pH), [OH−] = Kw·10^(pH + φ).
         let e = (-x).exp10();
         let inv_e = R::ONE / e;
-        let big_g = if af == R::ZERO { R::ONE } else { af.exp10() };
+        let (big_g, inv_g) = if af != R::ZERO {
+            let g = af.exp10();
+            (g, R::ONE / g)
+        } else {
+            (R::ONE, R::ONE)
+        };
         // With `fast-math` (approximate f32 exponentials), one exponential each, as in the
         // nested solve, instead of products of approximations.
         let (h, oh) = if cfg!(feature = "fast-math") && R::RELATIVE_PRECISION > 1e-10 {
             ((af - x).exp10(), (x - self.pkw + af).exp10())
         } else {
-            (e * big_g, k.kw * inv_e * big_g)
+            (e * big_g, self.kw * inv_e * big_g)
         };
         let q = self.strong_charge_eq_per_l;
-        // Positive side: value, d/dx, d²/dx², ∂/∂af; the same for the negative side.
-        let ln10_3 = ln10_2 * ln10;
+        // Positive side: value, d/dx, d²/dx², d³/dx³, ∂/∂af; the same for the negative side.
         let (mut p, mut p1, mut p2, mut p3, mut pa) = (h, -ln10 * h, ln10_2 * h, -ln10_3 * h, ln10 * h);
         let (mut n, mut n1, mut n2, mut n3, mut na) = (oh, ln10 * oh, ln10_2 * oh, ln10_3 * oh, ln10 * oh);
         if q > R::ZERO {
@@ -258,39 +328,54 @@ impl<R: Real> View<'_, R> {
         }
         let mut var_sum = h + oh;
         let mut ionic2 = h + oh;
-        let mut ionic2_x = ln10 * (oh - h);
-        let mut ionic2_af = ln10 * (oh + h);
-        for (c, ka) in self.components.iter().zip(k.ka.iter()) {
-            let a = alphas_from_ratios(c, ka, (inv_e, big_g), (x, af));
+        // d(Σ c·z²)/dpH and ∂(Σ c·z²)/∂φ, both divided by ln10 (multiplied back at the end).
+        let (mut ionic2_x, mut ionic2_af) = (oh - h, oh + h);
+        let (two, three, four) = (R::from_f64(2.0), R::from_f64(3.0), R::from_f64(4.0));
+        // N's own φ derivative (without ln10), summed over the z0 ≤ 0 systems.
+        let mut na_sum = R::ZERO;
+        let (mut n1_sum, mut n2_sum, mut n3_sum) = (R::ZERO, R::ZERO, R::ZERO);
+        for (c, k) in self.components.iter().zip(ka) {
             let steps = c.system.step_count();
+            let d = form_weights(c, k, (inv_e, big_g, inv_g), (x, af));
+            let mo = moments(&d, steps);
             let z0 = c.system.charge_of_form(0);
-            let mut nbar = R::ZERO;
-            let mut mbar = R::ZERO;
-            for (j, aj) in (0_i32..).zip(a.iter()).take(steps + 1) {
-                nbar += R::from_i32(j) * *aj;
-                // ∂(log10 [A_j]/[A_0])/∂af = −Σ_{i≤j}(2·z_{i−1} − 1) = j·(j − 2·z0).
-                mbar += R::from_i32(j * (j - 2 * z0)) * *aj;
-            }
-            let (mut var, mut mu3) = (R::ZERO, R::ZERO);
-            for (j, aj) in (0_i32..).zip(a.iter()).take(steps + 1) {
-                let d = R::from_i32(j) - nbar;
-                var += d * d * *aj;
-                mu3 += d * d * d * *aj;
-            }
-            let three = R::from_f64(3.0);
             let total = c.total_mol_per_l;
-            for (j, aj) in (0_i32..).zip(a.iter()).take(steps + 1) {
+            var_sum += total * mo.var;
+            if z0 <= 0 {
+                let m = mo.mean - R::from_i32(z0);
+                let cov = two * m * mo.var + mo.mu3;
+                n += total * m;
+                n1_sum += total * mo.var;
+                n2_sum += total * mo.mu3;
+                n3_sum += total * (mo.mu4 - three * mo.var * mo.var);
+                ionic2 += total * (m * m + mo.var);
+                if davies {
+                    na_sum += total * cov;
+                    ionic2_x += total * cov;
+                    ionic2_af += total * (four * m * m * mo.var + four * m * mo.mu3 + mo.mu4 - mo.var * mo.var);
+                } else {
+                    ionic2_x += total * cov;
+                }
+                continue;
+            }
+            // A system with a positively charged form: form by form.
+            let nbar = mo.mean;
+            let z0r = R::from_i32(z0);
+            // n̄·(n̄ − 2·z0) + μ2 = E[j·(j − 2·z0)].
+            let mbar = nbar * (nbar - two * z0r) + mo.var;
+            for (j, dj) in (0_i32..).zip(d.iter()).take(steps + 1) {
                 let z = z0 - j;
                 if z == 0 {
                     continue;
                 }
-                let w = total * *aj;
-                let d = R::from_i32(j) - nbar;
+                let w = total * *dj * mo.inv_sum;
+                let dv = R::from_i32(j) - nbar;
                 let dm = R::from_i32(j * (j - 2 * z0)) - mbar;
                 let zr = R::from_i32(z.abs());
-                let (v, v1, v2, va) = (zr * w, zr * w * ln10 * d, zr * w * ln10_2 * (d * d - var), zr * w * ln10 * dm);
+                let (v, v1, v2, va) =
+                    (zr * w, zr * w * ln10 * dv, zr * w * ln10_2 * (dv * dv - mo.var), zr * w * ln10 * dm);
                 // α‴_j = α_j·ln10³·(d³ − 3·d·var − μ3).
-                let v3 = zr * w * ln10_3 * (d * d * d - three * d * var - mu3);
+                let v3 = zr * w * ln10_3 * (dv * dv * dv - three * dv * mo.var - mo.mu3);
                 if z > 0 {
                     p += v;
                     p1 += v1;
@@ -306,29 +391,33 @@ impl<R: Real> View<'_, R> {
                 }
                 let z2 = R::from_i32(z * z);
                 ionic2 += z2 * w;
-                ionic2_x += z2 * w * ln10 * d;
-                ionic2_af += z2 * w * ln10 * dm;
+                ionic2_x += z2 * w * dv;
+                ionic2_af += z2 * w * dm;
             }
-            var_sum += total * var;
         }
+        n1 += ln10 * n1_sum;
+        n2 += ln10_2 * n2_sum;
+        n3 += ln10_3 * n3_sum;
+        na += ln10 * na_sum;
         let half = R::from_f64(0.5);
-        let (two, three) = (R::from_f64(2.0), R::from_f64(3.0));
         let (rp, rn) = (p1 / p, n1 / n);
+        let (inv_p, inv_n) = (R::ONE / p, R::ONE / n);
         LogEval {
             eval: Eval {
+                water: h + oh,
                 excess: p - n,
                 beta: ln10 * var_sum,
                 ionic_strength: half * ionic2 + self.strong_ionic_strength_mol_per_l,
             },
             g: ln_ratio(p, n),
             g1: rp - rn,
-            g2: p2 / p - rp * rp - n2 / n + rn * rn,
+            g2: p2 * inv_p - rp * rp - n2 * inv_n + rn * rn,
             // d/dx (P″/P − (P′/P)²) = P‴/P − 3·P″P′/P² + 2·(P′/P)³.
-            g3: p3 / p - three * (p2 / p) * rp + two * rp * rp * rp
-                - (n3 / n - three * (n2 / n) * rn + two * rn * rn * rn),
-            g_af: pa / p - na / n,
-            ionic_x: half * ionic2_x,
-            ionic_af: half * ionic2_af,
+            g3: p3 * inv_p - three * (p2 * inv_p) * rp + two * rp * rp * rp
+                - (n3 * inv_n - three * (n2 * inv_n) * rn + two * rn * rn * rn),
+            g_af: pa * inv_p - na * inv_n,
+            ionic_x: half * ln10 * ionic2_x,
+            ionic_af: half * ln10 * ionic2_af,
         }
     }
 
@@ -476,7 +565,7 @@ impl<R: Real> View<'_, R> {
         let mut last_ionic = ionic;
         let mut previous_step: Option<R> = None;
         let mut spent = 0_u32;
-        let Some(constants) = self.constants() else {
+        let Some(constants) = self.step_constants() else {
             return Quick::Continue(0, x, ionic);
         };
         while spent < limit.min(QUICK_ITERATIONS) {
@@ -564,7 +653,8 @@ impl<R: Real> View<'_, R> {
             // strength reported are those of the last evaluation, one such step away; the
             // residual is carried along the step to first order.
             let width = hi - lo;
-            let resolved = width <= R::from_f64(10.0) * tol && width <= self.resolution(x, af, e.eval.beta);
+            let resolved =
+                width <= R::from_f64(10.0) * tol && width <= self.resolution_from_water(e.eval.water, e.eval.beta);
             let final_limit = if householder { FINAL_HOUSEHOLDER_STEP_PH } else { FINAL_STEP_PH };
             let final_step = R::from_f64(final_limit).max(tol);
             let finishing = !davies && step.abs() <= final_step && x + step >= lo && x + step <= hi;

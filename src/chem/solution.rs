@@ -123,6 +123,8 @@ pub struct Solution<R: Real, const N: usize> {
     temperature: Celsius<R>,
     activity: Activity,
     pkw: R,
+    /// Kw = 10^−pKw (cached with `pkw`).
+    kw: R,
     debye_huckel_a: R,
     /// Bit `i` set: component `i`'s pKa values were given ([`Solution::add_system_with_pka`])
     /// and do not follow the temperature.
@@ -157,6 +159,7 @@ impl<R: Real, const N: usize> Solution<R, N> {
             temperature,
             activity,
             pkw: water::pkw(temperature),
+            kw: (-water::pkw(temperature)).exp10(),
             debye_huckel_a: activity::debye_huckel_a(temperature),
             given_pka: 0,
         }
@@ -207,6 +210,11 @@ impl<R: Real, const N: usize> Solution<R, N> {
         self.pkw
     }
 
+    /// Kw = 10^−pKw at the solution's temperature (cached).
+    pub(crate) fn kw(&self) -> R {
+        self.kw
+    }
+
     /// Debye–Hückel A at the solution's temperature.
     pub fn debye_huckel_a(&self) -> R {
         self.debye_huckel_a
@@ -221,6 +229,7 @@ impl<R: Real, const N: usize> Solution<R, N> {
     pub fn set_temperature(&mut self, temperature: Celsius<R>) {
         self.temperature = temperature;
         self.pkw = water::pkw(temperature);
+        self.kw = (-self.pkw).exp10();
         self.debye_huckel_a = activity::debye_huckel_a(temperature);
         let tk = temperature.kelvin();
         let given = self.given_pka;

@@ -56,15 +56,23 @@ pub fn max_ph_iterations<R: Real>() -> u32 {
 /// ⌈log2((PH_MAX − PH_MIN)/tol)⌉ (38 for `f64`, 21 for `f32`).
 pub fn bisection_iterations<R: Real>() -> u32 {
     let ratio = (PH_MAX - PH_MIN) / R::PH_TOLERANCE.to_f64();
-    let mut n = 0;
-    let mut w = 1.0_f64;
-    // Bounded: ratio ≤ 17/1e-10 < 2^38, so at most 38 rounds for the tolerances used here;
-    // capped at 64 for any tolerance.
-    while w < ratio && n < 64 {
-        w *= 2.0;
-        n += 1;
+    ceil_log2(ratio)
+}
+
+/// ⌈log2 `ratio`⌉ for a ratio > 1 (the least n with 2^n ≥ ratio), read off the binary exponent
+/// instead of counting doublings (this runs once per solve); 0 for a ratio ≤ 1, capped at 64.
+fn ceil_log2(ratio: f64) -> u32 {
+    if ratio.is_nan() || ratio <= 1.0 {
+        return 0;
     }
-    n
+    if !ratio.is_finite() {
+        return 64;
+    }
+    let bits = ratio.to_bits();
+    // A finite ratio > 1 is normal: biased exponent 1023 + e, e ≥ 0.
+    let exponent = u32::try_from((bits >> 52) & 0x7ff).unwrap_or(0).saturating_sub(1023);
+    let exact_power = bits & ((1_u64 << 52) - 1) == 0;
+    (if exact_power { exponent } else { exponent + 1 }).min(64)
 }
 
 /// Why a solve failed.
@@ -191,6 +199,8 @@ pub(crate) struct Eval<R> {
     pub excess: R,
     pub beta: R,
     pub ionic_strength: R,
+    /// [H⁺] + [OH⁻], mol/L (the water's part of the resolution estimate's charge sum).
+    pub water: R,
 }
 
 /// Alpha fractions of a component at `ph` with Davies factor `af`: returns the fractions
@@ -255,6 +265,7 @@ impl<R: Real, const N: usize> Solution<R, N> {
             ionic2 += c.total_mol_per_l * z2;
         }
         Eval {
+            water: h + oh,
             excess,
             beta: R::LN_10 * var_sum,
             ionic_strength: R::from_f64(0.5) * ionic2 + self.strong_ionic_strength_mol_per_l(),
@@ -429,7 +440,7 @@ impl<R: Real, const N: usize> Solution<R, N> {
 
     fn finish(&self, ph: R, e: Eval<R>, iterations: u32, af: R) -> Equilibrium<R> {
         Equilibrium {
-            resolution_ph: self.resolution(ph, af, e.beta),
+            resolution_ph: self.view().resolution_from_water(e.water, e.beta),
             ph,
             iterations,
             buffer_capacity_mol_per_l_per_ph: e.beta,
@@ -580,6 +591,24 @@ mod tests {
         // Water's buffer capacity at neutrality: ln10·2·1e-7 = 4.6e-7 (calc from the definition
         // β = ln10·([H+] + [OH-])).
         assert!((e.buffer_capacity_mol_per_l_per_ph - 4.6e-7).abs() < 0.05e-7);
+    }
+
+    #[test]
+    fn ceil_log2_counts_doublings() {
+        // The definition: the least n with 2^n ≥ ratio, by doubling.
+        let by_doubling = |ratio: f64| {
+            let (mut n, mut w) = (0_u32, 1.0_f64);
+            while w < ratio && n < 64 {
+                w *= 2.0;
+                n += 1;
+            }
+            n
+        };
+        for ratio in [0.5, 1.0, 1.5, 2.0, 3.0, 4.0, 1023.0, 1024.0, 1025.0, 1.7e11, 1.7e5, 1.7e4, 1e300] {
+            assert_eq!(ceil_log2(ratio), by_doubling(ratio), "{ratio}");
+        }
+        assert_eq!(ceil_log2(f64::NAN), 0);
+        assert_eq!(ceil_log2(f64::INFINITY), 64);
     }
 
     #[test]

@@ -128,11 +128,13 @@ impl AcidBaseSystem {
     }
 
     /// Number of dissociation steps as `usize` (clamped to 1–3).
+    #[inline]
     pub fn step_count(&self) -> usize {
         usize::from(self.steps).clamp(1, MAX_STEPS)
     }
 
     /// Charge of form `j` (protons lost).
+    #[inline]
     pub fn charge_of_form(&self, j: usize) -> i32 {
         #[allow(clippy::cast_possible_wrap, clippy::cast_possible_truncation, reason = "j ≤ 3")]
         let j = j as i32;
