@@ -49,6 +49,19 @@ pub fn davies_factor_slope<R: Real>(a: R, ionic_strength_mol_per_l: R) -> R {
     a * (R::ONE / (R::from_f64(2.0) * s * d * d) - R::from_f64(0.3))
 }
 
+/// [`davies_factor`] and [`davies_factor_slope`] together at `ionic_strength_mol_per_l`
+/// (mol/L): one square root instead of two, the same values.
+pub fn davies_factor_and_slope<R: Real>(a: R, ionic_strength_mol_per_l: R) -> (R, R) {
+    let floor = R::from_f64(1e-12);
+    let i = ionic_strength_mol_per_l.max(R::ZERO);
+    let s = i.sqrt();
+    let factor = a * (s / (R::ONE + s) - R::from_f64(0.3) * i);
+    // The slope's floor, as `davies_factor_slope`: √(1e-12) = 1e-6 exactly.
+    let s_slope = if i >= floor { s } else { R::from_f64(1e-6) };
+    let d = R::ONE + s_slope;
+    (factor, a * (R::ONE / (R::from_f64(2.0) * s_slope * d * d) - R::from_f64(0.3)))
+}
+
 /// Activity coefficient γ of an ion of charge `z` given the Davies factor.
 pub fn gamma<R: Real>(factor: R, z: i32) -> R {
     (-factor * R::from_i32(z * z)).exp10()
@@ -68,6 +81,17 @@ mod tests {
         let a0 = debye_huckel_a(Celsius::new(0.0_f64).unwrap());
         let a100 = debye_huckel_a(Celsius::new(100.0_f64).unwrap());
         assert!((a0 - 0.4918).abs() < 0.001 && (a100 - 0.5959).abs() < 0.001, "{a0} {a100}");
+    }
+
+    #[test]
+    fn factor_and_slope_together_are_the_two_functions() {
+        for i in [0.0, 1e-14, 1e-12, 3e-9, 1e-4, 0.01, 0.1, 0.5, -1.0] {
+            let a = 0.51_f64;
+            assert_eq!(davies_factor_and_slope(a, i), (davies_factor(a, i), davies_factor_slope(a, i)), "{i}");
+            let a = 0.51_f32;
+            let i = i as f32;
+            assert_eq!(davies_factor_and_slope(a, i), (davies_factor(a, i), davies_factor_slope(a, i)), "{i}");
+        }
     }
 
     #[test]

@@ -265,24 +265,26 @@ impl<R: Real> View<'_, R> {
         if beta > R::ZERO { epsilon * scale / beta } else { R::from_f64(f64::INFINITY) }
     }
 
-    /// The step constants of one solve, Ka = 10^−pKa of every step of every component (one
-    /// exponential each; Kw is cached by the solution). `None` when a pKa is not finite or beyond
+    /// Writes the step constants of one solve into `rows`, Ka = 10^−pKa of every step of every
+    /// component (one exponential each; Kw is cached by the solution). `false` when a pKa is not finite or beyond
     /// ±[`MAX_PK`] (no chemistry has one): such a solution goes to the nested solve, which refuses
     /// or solves it as it always did. Only the components' rows are written (no array to clear).
-    pub(crate) fn step_constants(&self) -> Option<StepConstants<R>> {
-        let mut rows = StepConstants::new();
+    pub(crate) fn step_constants(&self, rows: &mut StepConstants<R>) -> bool {
+        rows.clear();
         let limit = R::from_f64(MAX_PK);
         for c in self.components {
             let mut row = [R::ZERO; MAX_STEPS];
             for (k, pk) in row.iter_mut().zip(c.pk.iter()).take(c.system.step_count()) {
                 if !(pk.is_finite() && pk.abs() <= limit) {
-                    return None;
+                    return false;
                 }
-                *k = (-*pk).exp10();
+                *k = (-*pk).exp10_quick();
             }
-            rows.push(row).ok()?;
+            if rows.push(row).is_err() {
+                return false;
+            }
         }
-        Some(rows)
+        true
     }
 
     /// The log charge ratio and its derivatives at pH `x` with Davies factor `af`: two
@@ -302,10 +304,10 @@ impl<R: Real> View<'_, R> {
         let ln10_3 = ln10_2 * ln10;
         let davies = self.davies;
         // [H+] = 10^(φ − pH), [OH−] = Kw·10^(pH + φ).
-        let e = (-x).exp10();
+        let e = (-x).exp10_quick();
         let inv_e = R::ONE / e;
         let (big_g, inv_g) = if af != R::ZERO {
-            let g = af.exp10();
+            let g = af.exp10_quick();
             (g, R::ONE / g)
         } else {
             (R::ONE, R::ONE)
@@ -565,9 +567,10 @@ impl<R: Real> View<'_, R> {
         let mut last_ionic = ionic;
         let mut previous_step: Option<R> = None;
         let mut spent = 0_u32;
-        let Some(constants) = self.step_constants() else {
+        let mut constants = StepConstants::new();
+        if !self.step_constants(&mut constants) {
             return Quick::Continue(0, x, ionic);
-        };
+        }
         while spent < limit.min(QUICK_ITERATIONS) {
             spent += 1;
             let e = self.evaluate_log(x, af, &constants);
@@ -590,8 +593,8 @@ impl<R: Real> View<'_, R> {
             // dr/dφ = D (F′·∂I/∂φ − 1, close to −1).
             let (r, c, d, consistent) = if davies {
                 let i = clamp_i(ionic_here);
-                let slope = activity::davies_factor_slope(a, i);
-                let r = activity::davies_factor(a, i) - af;
+                let (factor, slope) = activity::davies_factor_and_slope(a, i);
+                let r = factor - af;
                 // The nested solve's test: φ reproduces itself to a tenth of the pH tolerance,
                 // or the ionic strength it stands for (I − r/F′) matches I relatively.
                 let tol_i = R::IONIC_STRENGTH_TOLERANCE * ionic_here.max(R::from_f64(1e-12));

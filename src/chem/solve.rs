@@ -61,6 +61,7 @@ pub fn bisection_iterations<R: Real>() -> u32 {
 
 /// ⌈log2 `ratio`⌉ for a ratio > 1 (the least n with 2^n ≥ ratio), read off the binary exponent
 /// instead of counting doublings (this runs once per solve); 0 for a ratio ≤ 1, capped at 64.
+#[inline]
 fn ceil_log2(ratio: f64) -> u32 {
     if ratio.is_nan() || ratio <= 1.0 {
         return 0;
