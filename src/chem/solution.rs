@@ -152,14 +152,15 @@ impl<R: Real, const N: usize> Solution<R, N> {
     pub fn new(temperature: Celsius<R>, activity: Activity) -> Self {
         const { assert!(N > 0, "a solution needs room for at least one system") };
         const { assert!(N <= MAX_SYSTEMS, "a solution holds at most MAX_SYSTEMS systems") };
+        let pkw = water::pkw(temperature);
         Self {
             components: Vec::new(),
             strong_charge_eq_per_l: R::ZERO,
             strong_ionic_strength_mol_per_l: R::ZERO,
             temperature,
             activity,
-            pkw: water::pkw(temperature),
-            kw: (-water::pkw(temperature)).exp10(),
+            pkw,
+            kw: (-pkw).exp10(),
             debye_huckel_a: activity::debye_huckel_a(temperature),
             given_pka: 0,
         }
@@ -225,8 +226,28 @@ impl<R: Real, const N: usize> Solution<R, N> {
         self.components.iter().find(|c| c.system.key == key).map_or(R::ZERO, |c| c.total_mol_per_l)
     }
 
-    /// Changes the temperature and recomputes every temperature-dependent constant.
+    /// An empty solution (no systems, no strong ions) with this one's temperature, activity
+    /// mode and water constants.
+    fn empty_like(&self) -> Self {
+        Self {
+            components: Vec::new(),
+            strong_charge_eq_per_l: R::ZERO,
+            strong_ionic_strength_mol_per_l: R::ZERO,
+            temperature: self.temperature,
+            activity: self.activity,
+            pkw: self.pkw,
+            kw: self.kw,
+            debye_huckel_a: self.debye_huckel_a,
+            given_pka: 0,
+        }
+    }
+
+    /// Changes the temperature and recomputes every temperature-dependent constant (nothing to
+    /// do when it is the temperature the solution already has).
     pub fn set_temperature(&mut self, temperature: Celsius<R>) {
+        if temperature.celsius() == self.temperature.celsius() {
+            return;
+        }
         self.temperature = temperature;
         self.pkw = water::pkw(temperature);
         self.kw = (-self.pkw).exp10();
@@ -277,6 +298,19 @@ impl<R: Real, const N: usize> Solution<R, N> {
         total_mol_per_l: R,
         fixed: Option<[R; MAX_STEPS]>,
     ) -> Result<(), CompositionError> {
+        self.add_component_cached(system, total_mol_per_l, fixed, None)
+    }
+
+    /// [`Self::add_component`] with, in `cached`, the system's pKa values at this solution's
+    /// temperature when the caller already holds them (used instead of the temperature
+    /// functions for a system that follows the temperature).
+    fn add_component_cached(
+        &mut self,
+        system: &'static AcidBaseSystem,
+        total_mol_per_l: R,
+        fixed: Option<[R; MAX_STEPS]>,
+        cached: Option<[R; MAX_STEPS]>,
+    ) -> Result<(), CompositionError> {
         let amount = check_amount(total_mol_per_l)?;
         if let Some(i) = self.components.iter().position(|c| c.system.key == system.key) {
             let given = self.has_given_pka(i);
@@ -294,7 +328,7 @@ impl<R: Real, const N: usize> Solution<R, N> {
         let component = Component {
             system,
             total_mol_per_l: amount,
-            pk: fixed.unwrap_or_else(|| pk_at(system, self.temperature.kelvin())),
+            pk: fixed.or(cached).unwrap_or_else(|| pk_at(system, self.temperature.kelvin())),
         };
         let index = self.components.len();
         self.components.push(component).map_err(|_| CompositionError::CapacityExceeded { capacity: N })?;
@@ -357,14 +391,24 @@ impl<R: Real, const N: usize> Solution<R, N> {
         let (wa, wb) = (flow_self_l_per_h / total, flow_other_l_per_h / total);
         // A flow-weighted mean of two valid temperatures is valid; clamping removes only the
         // rounding of the mean (two 100 °C streams can average to 100.00000000000001).
-        let mean = self.temperature.celsius() * wa + other.temperature.celsius() * wb;
-        let t = Celsius::new(mean.max(R::from_f64(MIN_CELSIUS)).min(R::from_f64(MAX_CELSIUS)))?;
-        let mut out = Self::new(t, self.activity);
+        // Two streams at the same temperature mix at that temperature, and the result takes the
+        // constants both already hold (pKw, Debye–Hückel A, every step's pKa) instead of
+        // computing them again: the same numbers, without the temperature functions (on a
+        // board without a double-precision FPU those dominate a control tick).
+        let same_temperature = self.temperature.celsius() == other.temperature.celsius();
+        let mut out = if same_temperature {
+            self.empty_like()
+        } else {
+            let mean = self.temperature.celsius() * wa + other.temperature.celsius() * wb;
+            Self::new(Celsius::new(mean.max(R::from_f64(MIN_CELSIUS)).min(R::from_f64(MAX_CELSIUS)))?, self.activity)
+        };
         for (i, c) in self.components.iter().enumerate() {
-            out.add_component(c.system, c.total_mol_per_l * wa, self.has_given_pka(i).then_some(c.pk))?;
+            let cached = same_temperature.then_some(c.pk);
+            out.add_component_cached(c.system, c.total_mol_per_l * wa, self.has_given_pka(i).then_some(c.pk), cached)?;
         }
         for (i, c) in other.components.iter().enumerate() {
-            out.add_component(c.system, c.total_mol_per_l * wb, other.has_given_pka(i).then_some(c.pk))?;
+            let cached = same_temperature.then_some(c.pk);
+            out.add_component_cached(c.system, c.total_mol_per_l * wb, other.has_given_pka(i).then_some(c.pk), cached)?;
         }
         out.strong_charge_eq_per_l = self.strong_charge_eq_per_l * wa + other.strong_charge_eq_per_l * wb;
         out.strong_ionic_strength_mol_per_l =
@@ -445,6 +489,46 @@ mod tests {
             a.mix(-1.0, &b, 1.0),
             Err(CompositionError::InvalidFlow { first_l_per_h: -1.0, second_l_per_h: 1.0 })
         );
+    }
+
+    #[test]
+    fn mixing_at_one_temperature_keeps_the_constants_it_would_compute() {
+        // Both streams at 13.7 °C: the mix takes their cached constants; they must be the very
+        // numbers a solution built at that temperature computes, whatever the flows (f32 too).
+        fn check<R: Real>() {
+            let t = Celsius::new(R::from_f64(13.7)).unwrap();
+            let mut a: Solution<R, 4> = Solution::new(t, Activity::Davies);
+            a.add_formula("NaHCO3", R::from_f64(0.004)).unwrap();
+            a.add_system_with_pka(&catalogue::ACETATE, [R::from_f64(4.9), R::ZERO, R::ZERO], R::from_f64(0.001))
+                .unwrap();
+            let mut b: Solution<R, 4> = Solution::new(t, Activity::Davies);
+            b.add_formula("H3PO4", R::from_f64(0.01)).unwrap();
+            b.add_formula("NaHCO3", R::from_f64(0.001)).unwrap();
+            for (qa, qb) in [(300.0, 100.0), (0.3, 0.7), (1.0, 1e-9), (7.0, 3.0)] {
+                let m = a.mix(R::from_f64(qa), &b, R::from_f64(qb)).unwrap();
+                let mut fresh: Solution<R, 4> = Solution::new(t, Activity::Davies);
+                fresh.add_system(&catalogue::CARBONATE, R::ONE).unwrap();
+                fresh.add_system(&catalogue::PHOSPHATE, R::ONE).unwrap();
+                assert!(m.temperature().celsius() == t.celsius());
+                assert!(m.pkw() == fresh.pkw() && m.kw() == fresh.kw());
+                assert!(m.debye_huckel_a() == fresh.debye_huckel_a());
+                assert_eq!(m.component_pka(0, 1), fresh.component_pka(0, 1));
+                assert_eq!(m.component_pka(0, 2), fresh.component_pka(0, 2));
+                assert_eq!(m.component_pka(2, 3), fresh.component_pka(1, 3));
+                // The given pKa stays given (and does not follow a later temperature change).
+                assert_eq!(m.component_pka(1, 1), Some(R::from_f64(4.9)));
+                let mut warmer = m.clone();
+                warmer.set_temperature(Celsius::new(R::from_f64(30.0)).unwrap());
+                assert_eq!(warmer.component_pka(1, 1), Some(R::from_f64(4.9)));
+                assert!(warmer.component_pka(0, 1) != m.component_pka(0, 1));
+            }
+            // Setting the temperature a solution already has changes nothing.
+            let mut same = a.clone();
+            same.set_temperature(t);
+            assert_eq!(same, a);
+        }
+        check::<f64>();
+        check::<f32>();
     }
 
     #[test]
