@@ -113,7 +113,7 @@ pub struct Component<R: Real> {
 /// also contribute ½·Σc·z² to the ionic strength, which is tracked alongside.
 ///
 /// Memory: `N` × (one pointer and four reals: 20 bytes for `f32` on a 32-bit MCU, 24 on a
-/// 64-bit host) plus seven words; no heap. `N` is at most [`MAX_SYSTEMS`].
+/// 64-bit host) plus eight words; no heap. `N` is at most [`MAX_SYSTEMS`].
 #[derive(Clone, Debug, PartialEq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct Solution<R: Real, const N: usize> {

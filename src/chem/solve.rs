@@ -308,8 +308,8 @@ impl<R: Real, const N: usize> Solution<R, N> {
     }
 
     /// Solves again from a previous result of (nearly) the same solution — the control-loop
-    /// case: one or two iterations for the same water; after a change of about 1 %, about three
-    /// in ideal mode and nine in Davies mode (f64; see the README's corpus table).
+    /// case: one or two iterations for the same water; after a change of about 1 %, about two
+    /// in ideal mode and three in Davies mode (see the README's corpus table).
     pub fn solve_warm(&self, previous: &Equilibrium<R>) -> Result<Equilibrium<R>, SolveError> {
         self.solve_with(SolverOptions {
             warm_start_ph: Some(previous.ph),
