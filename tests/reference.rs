@@ -341,6 +341,24 @@ const SHOCK95_OXALATE_K2: [(f64, f64); 13] = [
     (60.0, 4.4571),
 ];
 
+/// pK of formic acid = formate + H+: Shock (1995), as [`SHOCK95_OXALATE_K1`] (same package, script and
+/// conditions; the script's `OBIGT_FORMATE`).
+const SHOCK95_FORMATE: [(f64, f64); 13] = [
+    (0.0, 3.7949),
+    (5.0, 3.7782),
+    (10.0, 3.7663),
+    (15.0, 3.7585),
+    (20.0, 3.7543),
+    (25.0, 3.7530),
+    (30.0, 3.7543),
+    (35.0, 3.7580),
+    (40.0, 3.7638),
+    (45.0, 3.7715),
+    (50.0, 3.7809),
+    (55.0, 3.7918),
+    (60.0, 3.8041),
+];
+
 /// pK of acetic acid = acetate + H+: Shock (1995), as [`SHOCK95_OXALATE_K1`] (same package, script and
 /// conditions; OBIGT species "acetic acid" and "acetate").
 const SHOCK95_ACETATE: [(f64, f64); 13] = [
@@ -714,6 +732,37 @@ const PK_CHECKS: &[PkCheck] = &[
         celsius: &[25.0],
         reference: |_| 4.266,
         tol: 0.010,
+    },
+    // Formic acid: Shock (1995) via pychnosz 1.5.3 (table above), an independent evaluation of the
+    // catalogue's Harned & Embree (1934) function (from memory). Measured: −0.0099 at 0 °C, −0.0010 at
+    // 25 °C, +0.0055 at 60 °C; the two bend alike (the van 't Hoff line they replace missed Shock by
+    // 0.05–0.06 at the ends). Bound: the measured worst rounded up.
+    PkCheck {
+        key: "formate",
+        step: 1,
+        source: "Shock 1995 via pychnosz 1.5.3",
+        celsius: T_0_60,
+        reference: |t| tabulated(&SHOCK95_FORMATE, t),
+        tol: 0.010,
+    },
+    // Formic acid at 25 °C: ionize 1.5.3's database, "formic acid" pKa 3.752 (its enthalpy, −335 J/mol,
+    // comes without a heat capacity, so only the 25 °C value is used), and NIST SRD 46 via
+    // minteq.v4.dat (phreeqc 1.1.1): association log K 3.745 (checked). The two sources part by 0.007.
+    PkCheck {
+        key: "formate",
+        step: 1,
+        source: "ionize 1.5.3 database (25 °C)",
+        celsius: &[25.0],
+        reference: |_| 3.752,
+        tol: 0.005,
+    },
+    PkCheck {
+        key: "formate",
+        step: 1,
+        source: "NIST SRD 46 via minteq.v4.dat (25 °C)",
+        celsius: &[25.0],
+        reference: |_| 3.745,
+        tol: 0.008,
     },
     // Phthalic acid: ionize 1.5.3, ionize/Database/ion_data.json, "phthalic acid": pKa 2.95 and 5.408,
     // enthalpy −2700 and −2170 J/mol, heat capacity −91 and −295 J/(K·mol) (printed by

@@ -210,14 +210,19 @@ pub const CITRATE: AcidBaseSystem = AcidBaseSystem {
     parent_acid: "C6H8O7",
 };
 
-/// Formate: HCOOH / HCOO⁻. pKa 3.745, ΔH° −0.17 kJ/mol — NIST SRD 46 (v2), as carried by PHREEQC's
-/// minteq.v4.dat (log K 3.745 and ΔH° +0.1674 kJ/mol for the association; checked). No
-/// temperature function was found in a readable source: van 't Hoff.
+/// Formate: HCOOH / HCOO⁻. Harned & Embree (1934), J. Am. Chem. Soc. 56, 1042, from their cells over
+/// 0–60 °C: pK = 1342.85/T − 5.2743 + 0.015168·T, T in K (coefficients and citation from memory; the
+/// paper could not be read here); 3.7520 at 25 °C (calc). Checked before a test relied on it: within
+/// 0.010 over 0–60 °C of Shock (1995) as evaluated by pychnosz 1.5.3 (an independent equation of state:
+/// −0.0099 at 0 °C, −0.0010 at 25 °C, +0.0055 at 60 °C), and at 25 °C 3.752 in the ionize 1.5.3 ion
+/// database and 3.745 in NIST SRD 46 (minteq.v4.dat; checked) (`tests/reference.rs`). The van 't Hoff
+/// line it replaces (NIST's pK and ΔH° −0.17 kJ/mol) stayed near 3.745 and missed Shock by 0.05–0.06 at
+/// 0 and 60 °C.
 pub const FORMATE: AcidBaseSystem = AcidBaseSystem {
     key: "formate",
     forms: ["HCOOH", "HCOO-", "", ""],
     steps: 1,
-    log_k: [LogK::vant_hoff(3.745, -0.17), NONE, NONE],
+    log_k: [LogK::analytic(5.2743, -1342.85, -0.015_168, 0.0, 0.0), NONE, NONE],
     charge_protonated: 0,
     parent_acid: "HCOOH",
 };

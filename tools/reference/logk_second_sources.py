@@ -9,8 +9,8 @@ tools/reference/requirements-logk.txt (Python 3.11.7):
     /tmp/logk-venv/bin/python tools/reference/logk_second_sources.py
 
 1. pychnosz 1.5.3 (a Python port of CHNOSZ; its OBIGT database): standard-state properties of
-   oxalic acid, H-oxalate, oxalate-2, acetic acid and acetate from Shock (1995), Am. J. Sci. 295,
-   496 ("Sho95" in OBIGT's refs.csv), in the revised HKF equations of state, evaluated by the
+   oxalic acid, H-oxalate, oxalate-2, acetic acid, acetate, formic acid and formate from Shock (1995),
+   Am. J. Sci. 295, 496 ("Sho95" in OBIGT's refs.csv), in the revised HKF equations of state, evaluated by the
    package's `subcrt` at 1 bar. The OBIGT rows are printed as they stand in
    pychnosz/data/extdata/OBIGT/organic_aq.csv. CHNOSZ cannot evaluate water at 0 degC exactly
    and moves 0 degC to 0.01 degC; the difference in pK is below 1e-4.
@@ -95,13 +95,15 @@ def section_obigt():
     print_lines(os.path.join(base, "data", "extdata", "thermo", "refs.csv"), ["Sho95,"])
     print_lines(
         os.path.join(base, "data", "extdata", "OBIGT", "organic_aq.csv"),
-        ['"oxalic acid",', "H-oxalate,", "oxalate-2,", '"acetic acid",', "acetate,"],
+        ['"oxalic acid",', "H-oxalate,", "oxalate-2,", '"acetic acid",', "acetate,", '"formic acid",',
+         "formate,"],
     )
     tables = {}
     for key, acid, b in [
         ("OBIGT_OXALATE_K1", "oxalic acid", "H-oxalate"),
         ("OBIGT_OXALATE_K2", "H-oxalate", "oxalate-2"),
         ("OBIGT_ACETATE", "acetic acid", "acetate"),
+        ("OBIGT_FORMATE", "formic acid", "formate"),
     ]:
         tables[key] = obigt_pk(acid, b)
     print()
@@ -109,6 +111,7 @@ def section_obigt():
         ("OBIGT_OXALATE_K1", "oxalic acid = H-oxalate + H+"),
         ("OBIGT_OXALATE_K2", "H-oxalate = oxalate-2 + H+"),
         ("OBIGT_ACETATE", "acetic acid = acetate + H+"),
+        ("OBIGT_FORMATE", "formic acid = formate + H+"),
     ]:
         rust_table(
             key,
