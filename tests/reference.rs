@@ -766,8 +766,8 @@ const PK_CHECKS: &[PkCheck] = &[
     },
     // Phthalic acid: ionize 1.5.3, ionize/Database/ion_data.json, "phthalic acid": pKa 2.95 and 5.408,
     // enthalpy −2700 and −2170 J/mol, heat capacity −91 and −295 J/(K·mol) (printed by
-    // tools/reference/logk_second_sources.py; the entry names no source, its numbers are those of a
-    // constant-ΔCp° reduction of the same NBS cells), evaluated with the formula written out in
+    // tools/reference/logk_second_sources.py; the entry names no source, so whether it reduces the
+    // same cells is not known), evaluated with the constant-ΔCp° formula written out in
     // `goldberg`. The catalogue carries Hamer & Acree's three-term functions (from memory): an
     // independent form, so this is the check of the coefficients. Measured worst 0.0007 (K1) and
     // 0.0010 (K2).

@@ -36,30 +36,38 @@ pub fn debye_huckel_a<R: Real>(t: Celsius<R>) -> R {
 /// `ionic_strength_mol_per_l` must be ≥ 0 (negative input is treated as 0).
 pub fn davies_factor<R: Real>(a: R, ionic_strength_mol_per_l: R) -> R {
     let i = ionic_strength_mol_per_l.max(R::ZERO);
-    let s = i.sqrt();
-    a * (s / (R::ONE + s) - R::from_f64(0.3) * i)
+    factor_from_root(a, i.sqrt(), i)
 }
 
 /// d(Davies factor)/dI at `ionic_strength_mol_per_l`, L/mol: A·(1/(2·√I·(1+√I)²) − 0.3).
 /// The ionic strength is taken as at least 1e-12 mol/L (the slope is unbounded at 0).
 pub fn davies_factor_slope<R: Real>(a: R, ionic_strength_mol_per_l: R) -> R {
-    let i = ionic_strength_mol_per_l.max(R::from_f64(1e-12));
-    let s = i.sqrt();
-    let d = R::ONE + s;
-    a * (R::ONE / (R::from_f64(2.0) * s * d * d) - R::from_f64(0.3))
+    slope_from_root(a, ionic_strength_mol_per_l.max(R::from_f64(SLOPE_FLOOR_MOL_PER_L)).sqrt())
 }
 
 /// [`davies_factor`] and [`davies_factor_slope`] together at `ionic_strength_mol_per_l`
 /// (mol/L): one square root instead of two, the same values.
 pub fn davies_factor_and_slope<R: Real>(a: R, ionic_strength_mol_per_l: R) -> (R, R) {
-    let floor = R::from_f64(1e-12);
+    let floor = R::from_f64(SLOPE_FLOOR_MOL_PER_L);
     let i = ionic_strength_mol_per_l.max(R::ZERO);
     let s = i.sqrt();
-    let factor = a * (s / (R::ONE + s) - R::from_f64(0.3) * i);
-    // The slope's floor, as `davies_factor_slope`: √(1e-12) = 1e-6 exactly.
-    let s_slope = if i >= floor { s } else { R::from_f64(1e-6) };
-    let d = R::ONE + s_slope;
-    (factor, a * (R::ONE / (R::from_f64(2.0) * s_slope * d * d) - R::from_f64(0.3)))
+    // The slope's floor, as in `davies_factor_slope` (a second root only below it).
+    let s_slope = if i >= floor { s } else { floor.sqrt() };
+    (factor_from_root(a, s, i), slope_from_root(a, s_slope))
+}
+
+/// Smallest ionic strength the Davies slope is taken at, mol/L.
+const SLOPE_FLOOR_MOL_PER_L: f64 = 1e-12;
+
+/// The Davies factor from √I (`s`) and I (`i`, ≥ 0).
+fn factor_from_root<R: Real>(a: R, s: R, i: R) -> R {
+    a * (s / (R::ONE + s) - R::from_f64(0.3) * i)
+}
+
+/// The Davies factor's slope from √I (`s` > 0).
+fn slope_from_root<R: Real>(a: R, s: R) -> R {
+    let d = R::ONE + s;
+    a * (R::ONE / (R::from_f64(2.0) * s * d * d) - R::from_f64(0.3))
 }
 
 /// Activity coefficient γ of an ion of charge `z` given the Davies factor.

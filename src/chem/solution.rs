@@ -153,6 +153,11 @@ impl<R: Real, const N: usize> Solution<R, N> {
         const { assert!(N > 0, "a solution needs room for at least one system") };
         const { assert!(N <= MAX_SYSTEMS, "a solution holds at most MAX_SYSTEMS systems") };
         let pkw = water::pkw(temperature);
+        Self::empty_with(temperature, activity, (pkw, (-pkw).exp10()), activity::debye_huckel_a(temperature))
+    }
+
+    /// An empty solution (no systems, no strong ions) with these constants: `water` is (pKw, Kw).
+    fn empty_with(temperature: Celsius<R>, activity: Activity, (pkw, kw): (R, R), debye_huckel_a: R) -> Self {
         Self {
             components: Vec::new(),
             strong_charge_eq_per_l: R::ZERO,
@@ -160,8 +165,8 @@ impl<R: Real, const N: usize> Solution<R, N> {
             temperature,
             activity,
             pkw,
-            kw: (-pkw).exp10(),
-            debye_huckel_a: activity::debye_huckel_a(temperature),
+            kw,
+            debye_huckel_a,
             given_pka: 0,
         }
     }
@@ -229,17 +234,7 @@ impl<R: Real, const N: usize> Solution<R, N> {
     /// An empty solution (no systems, no strong ions) with this one's temperature, activity
     /// mode and water constants.
     fn empty_like(&self) -> Self {
-        Self {
-            components: Vec::new(),
-            strong_charge_eq_per_l: R::ZERO,
-            strong_ionic_strength_mol_per_l: R::ZERO,
-            temperature: self.temperature,
-            activity: self.activity,
-            pkw: self.pkw,
-            kw: self.kw,
-            debye_huckel_a: self.debye_huckel_a,
-            given_pka: 0,
-        }
+        Self::empty_with(self.temperature, self.activity, (self.pkw, self.kw), self.debye_huckel_a)
     }
 
     /// Changes the temperature and recomputes every temperature-dependent constant (nothing to
