@@ -305,3 +305,34 @@ fn a_setpoint_reached_by_dilution_is_planned() {
     // The smaller of the two crossings: the pH rises until about 0.01 L/h of acid.
     assert!(q > 0.005 && q < 0.01, "{q}");
 }
+
+/// A warm start on a nearly flat stretch of the log charge ratio, far from the new root (a
+/// differential fuzz finding): an ammonium chloride water near 0 °C whose previous root sat at
+/// pH 5.3, after a caustic addition that moves the root to pH 9.1. There the third derivative
+/// dominated Householder's quotient, which returned a step of 9e-4 pH while Newton's pointed
+/// 1,300 pH away, and a final-step rule that trusted short steps accepted it. The warm solve
+/// must give the cold solve's answer, both activity modes, f64 and f32.
+fn warm_far_from_the_root_on_a_flat_stretch<R: Real>() {
+    for activity in [Activity::Ideal, Activity::Davies] {
+        let mut water: Solution<R, 2> = Solution::new(Celsius::new(R::from_f64(0.389)).unwrap(), activity);
+        water.add_formula("NH4Cl", R::from_f64(0.2963)).unwrap();
+        let before = water.solve().unwrap();
+        water.add_formula("KOH", R::from_f64(0.02895)).unwrap();
+        let cold = water.solve().unwrap();
+        let warm = water.solve_warm(&before).unwrap();
+        let tol =
+            1e-8_f64.max(10.0 * R::PH_TOLERANCE.to_f64()) + 4.0 * (cold.resolution_ph + warm.resolution_ph).to_f64();
+        assert!(cold.ph.to_f64() > before.ph.to_f64() + 3.0, "{activity:?}: {} -> {}", before.ph, cold.ph);
+        assert!((warm.ph - cold.ph).abs().to_f64() <= tol, "{activity:?}: warm {} vs cold {}", warm.ph, cold.ph);
+    }
+}
+
+#[test]
+fn warm_solve_far_from_the_root_on_a_flat_stretch_f64() {
+    warm_far_from_the_root_on_a_flat_stretch::<f64>();
+}
+
+#[test]
+fn warm_solve_far_from_the_root_on_a_flat_stretch_f32() {
+    warm_far_from_the_root_on_a_flat_stretch::<f32>();
+}
