@@ -656,9 +656,10 @@ impl<R: Real> View<'_, R> {
             // correction only where it is small. (Where the slope is nearly flat and g‴ is not,
             // the Householder quotient is a small step that has nothing to do with the root: an
             // ammonium water 3.8 pH from its new root gave a step of 9e-4 pH.)
-            let s3 = big_g * big_g * e.g3 / (six * cube);
+            // (|s3| ≤ 0.1 tested as |G²·g‴| ≤ 0.6·|G′³|: no division.)
             let small = R::from_f64(0.1);
-            let householder = t.abs() <= small && s3.abs() <= small && den / cube > half;
+            let s3_small = (big_g * big_g * e.g3).abs() <= R::from_f64(0.6) * cube.abs();
+            let householder = t.abs() <= small && s3_small && den / cube > half;
             let step = if householder {
                 -(six * big_g * big_g1 * big_g1 - R::from_f64(3.0) * big_g * big_g * e.g2) / den
             } else if t <= half {
@@ -699,15 +700,14 @@ impl<R: Real> View<'_, R> {
             // The ionic strength at the end of a final step (first order): a step that would
             // carry it past the Davies model's limit is not final (the limit's checks below
             // and in the nested solve decide there).
-            let ionic_final = if davies { ionic_here + e.ionic_x * step + e.ionic_af * d_af_final } else { ionic_here };
-            let finishing = near
-                && inside
-                && ionic_final <= max_ionic
-                && if davies {
-                    step.abs() <= davies_final && d_af_final.abs() <= davies_final
-                } else {
-                    step.abs() <= final_step
-                };
+            let short = if davies {
+                step.abs() <= davies_final && d_af_final.abs() <= davies_final
+            } else {
+                step.abs() <= final_step
+            };
+            let ionic_final =
+                if davies && short { ionic_here + e.ionic_x * step + e.ionic_af * d_af_final } else { ionic_here };
+            let finishing = short && near && inside && ionic_final <= max_ionic;
             if (step.abs() <= tol || width <= tol || resolved || finishing) && (consistent || finishing) {
                 if ionic_here > max_ionic || x <= lo0 + edge || x >= hi0 - edge {
                     break;
