@@ -656,10 +656,11 @@ impl<R: Real> View<'_, R> {
             // correction only where it is small. (Where the slope is nearly flat and g‴ is not,
             // the Householder quotient is a small step that has nothing to do with the root: an
             // ammonium water 3.8 pH from its new root gave a step of 9e-4 pH.)
-            // (|s3| ≤ 0.1 tested as |G²·g‴| ≤ 0.6·|G′³|: no division.)
+            // (|s3| ≤ 0.1 tested as |G²·g‴| ≤ 0.6·|G′³|: no division.) With |t| and |s3| both
+            // within 0.1 the denominator is 6·G′³·(1 − 2t + s3), never near zero.
             let small = R::from_f64(0.1);
             let s3_small = (big_g * big_g * e.g3).abs() <= R::from_f64(0.6) * cube.abs();
-            let householder = t.abs() <= small && s3_small && den / cube > half;
+            let householder = t.abs() <= small && s3_small;
             let step = if householder {
                 -(six * big_g * big_g1 * big_g1 - R::from_f64(3.0) * big_g * big_g * e.g2) / den
             } else if t <= half {
@@ -697,14 +698,14 @@ impl<R: Real> View<'_, R> {
             // Only where the step is Newton's to within a tenth (|t| ≤ 0.1): a Halley step
             // damped by a large negative t is short however far the root is.
             let near = t.abs() <= small;
-            // The ionic strength at the end of a final step (first order): a step that would
-            // carry it past the Davies model's limit is not final (the limit's checks below
-            // and in the nested solve decide there).
             let short = if davies {
                 step.abs() <= davies_final && d_af_final.abs() <= davies_final
             } else {
                 step.abs() <= final_step
             };
+            // The ionic strength at the end of a final step (first order): a step that would
+            // carry it past the Davies model's limit is not final (the limit's checks below
+            // and in the nested solve decide there).
             let ionic_final =
                 if davies && short { ionic_here + e.ionic_x * step + e.ionic_af * d_af_final } else { ionic_here };
             let finishing = short && near && inside && ionic_final <= max_ionic;
