@@ -166,6 +166,53 @@ struct Moments<R> {
     inv_sum: R,
 }
 
+/// [`moments`] in closed form for one to three steps: with α_j = d_j / Σd and
+/// t_j = j − n̄ written as Σ_k α_k·(j − k) (no cancellation where one form dominates, the same
+/// relative precision as moments about the most abundant form), μ_r = Σ α_j·t_j^r. No search,
+/// no integer conversions; the general sum for anything else.
+fn moments_closed<R: Real>(d: &[R; MAX_STEPS + 1], n: usize) -> Moments<R> {
+    let two = R::from_f64(2.0);
+    let three = R::from_f64(3.0);
+    match (n, d) {
+        (1, [d0, d1, _, _]) => {
+            let inv_sum = R::ONE / (*d0 + *d1);
+            let (a0, a1) = (*d0 * inv_sum, *d1 * inv_sum);
+            let var = a0 * a1;
+            Moments { mean: a1, var, mu3: var * (a0 - a1), mu4: var * (R::ONE - three * var), inv_sum }
+        }
+        (2, [d0, d1, d2, _]) => {
+            let inv_sum = R::ONE / (*d0 + *d1 + *d2);
+            let (a0, a1, a2) = (*d0 * inv_sum, *d1 * inv_sum, *d2 * inv_sum);
+            let (t0, t1, t2) = (-(a1 + two * a2), a0 - a2, two * a0 + a1);
+            let (w0, w1, w2) = (a0 * t0 * t0, a1 * t1 * t1, a2 * t2 * t2);
+            Moments {
+                mean: a1 + two * a2,
+                var: w0 + w1 + w2,
+                mu3: w0 * t0 + w1 * t1 + w2 * t2,
+                mu4: w0 * t0 * t0 + w1 * t1 * t1 + w2 * t2 * t2,
+                inv_sum,
+            }
+        }
+        (3, [d0, d1, d2, d3]) => {
+            let inv_sum = R::ONE / (*d0 + *d1 + *d2 + *d3);
+            let (a0, a1, a2, a3) = (*d0 * inv_sum, *d1 * inv_sum, *d2 * inv_sum, *d3 * inv_sum);
+            let t0 = -(a1 + two * a2 + three * a3);
+            let t1 = a0 - a2 - two * a3;
+            let t2 = two * a0 + a1 - a3;
+            let t3 = three * a0 + two * a1 + a2;
+            let (w0, w1, w2, w3) = (a0 * t0 * t0, a1 * t1 * t1, a2 * t2 * t2, a3 * t3 * t3);
+            Moments {
+                mean: a1 + two * a2 + three * a3,
+                var: w0 + w1 + w2 + w3,
+                mu3: w0 * t0 + w1 * t1 + w2 * t2 + w3 * t3,
+                mu4: w0 * t0 * t0 + w1 * t1 * t1 + w2 * t2 * t2 + w3 * t3 * t3,
+                inv_sum,
+            }
+        }
+        _ => moments(d, n),
+    }
+}
+
 fn moments<R: Real>(d: &[R; MAX_STEPS + 1], n: usize) -> Moments<R> {
     let mut top = 0_i32;
     let mut best = R::ZERO;
@@ -357,7 +404,7 @@ impl<R: Real> View<'_, R> {
         for (c, k) in self.components.iter().zip(ka) {
             let steps = c.system.step_count();
             let d = form_weights(c, k, (inv_e, big_g, inv_g), (x, af));
-            let mo = moments(&d, steps);
+            let mo = moments_closed(&d, steps);
             let z0 = c.system.charge_of_form(0);
             let total = c.total_mol_per_l;
             var_sum += total * mo.var;
@@ -449,8 +496,10 @@ impl<R: Real> View<'_, R> {
     /// the root lies between steps with charge left over, and by the neighbouring steps' partial
     /// reactions when the charges balance on a plateau (salts of weak parents, amphiprotic forms,
     /// a weak acid alone). `af` is the Davies factor the step constants are corrected
-    /// with (0 in ideal mode). Cost: (steps in the solution)² comparisons (≤ 576 for eight
-    /// triprotic systems) and at most two logarithms.
+    /// with (0 in ideal mode). Cost: one breakpoint per step, computed once into a list (at most
+    /// `MAX_SYSTEMS`·`MAX_STEPS` = 96 entries on the stack), then (steps in the solution)²
+    /// comparisons over that list (≤ 576 for eight triprotic systems) and at most two logarithms
+    /// (and one exponential and a square root past the highest or below the lowest step).
     pub(crate) fn cold_start_ph(&self, af: R) -> R {
         let lo = R::from_f64(PH_MIN + 1.0);
         let hi = R::from_f64(PH_MAX - 1.0);
@@ -479,35 +528,38 @@ impl<R: Real> View<'_, R> {
             scale += c.total_mol_per_l * R::from_i32(i32::from(c.system.steps).max(1));
         }
         let zero = R::from_f64(1e-9) * scale;
+        // Every step's breakpoint and total once, in the components' order (the sums below add
+        // in the same order as a pass over the components would).
+        let mut points: heapless::Vec<(R, R), { MAX_SYSTEMS * MAX_STEPS }> = heapless::Vec::new();
         for c in self.components {
             for j in 1..=c.system.step_count() {
-                let b = point(c, j);
-                s_high -= c.total_mol_per_l;
-                if first.is_none_or(|(f, _)| b < f) {
-                    first = Some((b, c.total_mol_per_l));
-                }
-                if top.is_none_or(|(t, _)| b > t) {
-                    top = Some((b, c.total_mol_per_l));
-                }
-                let (mut below, mut at) = (R::ZERO, R::ZERO);
-                for d in self.components {
-                    for k in 1..=d.system.step_count() {
-                        let p = point(d, k);
-                        if p < b {
-                            below += d.total_mol_per_l;
-                        } else if p == b {
-                            at += d.total_mol_per_l;
-                        }
-                    }
-                }
-                let (before, after) = (s_low - below, s_low - below - at);
-                if before > zero && after <= zero {
-                    best = Some((b, before, after));
+                if points.push((point(c, j), c.total_mol_per_l)).is_err() {
+                    return R::from_f64(7.0);
                 }
             }
         }
-        let pkw = self.pkw;
-        let kw = (-pkw).exp10();
+        for &(b, total) in &points {
+            s_high -= total;
+            if first.is_none_or(|(f, _)| b < f) {
+                first = Some((b, total));
+            }
+            if top.is_none_or(|(t, _)| b > t) {
+                top = Some((b, total));
+            }
+            let (mut below, mut at) = (R::ZERO, R::ZERO);
+            for &(p, c) in &points {
+                if p < b {
+                    below += c;
+                } else if p == b {
+                    at += c;
+                }
+            }
+            let (before, after) = (s_low - below, s_low - below - at);
+            if before > zero && after <= zero {
+                best = Some((b, before, after));
+            }
+        }
+        let (pkw, kw) = (self.pkw, self.kw);
         // Past the highest step b (total c) with a leftover s ≥ 0: OH⁻ = s + the top form's
         // hydrolysis c·10^(b−pH); a quadratic in u = 10^pH: Kw·u² − s·u − c·10^b = 0.
         let top_end = |b: R, c: R, s: R| -> R {
@@ -534,12 +586,9 @@ impl<R: Real> View<'_, R> {
                 // past the top step, water takes up the hydrolysis.
                 let jump = before - after;
                 let mut next: Option<(R, R)> = None;
-                for c in self.components {
-                    for j in 1..=c.system.step_count() {
-                        let p = point(c, j);
-                        if p > b && next.is_none_or(|(n, _)| p < n) {
-                            next = Some((p, c.total_mol_per_l));
-                        }
+                for &(p, c) in &points {
+                    if p > b && next.is_none_or(|(n, _)| p < n) {
+                        next = Some((p, c));
                     }
                 }
                 match next {
