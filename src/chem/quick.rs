@@ -290,7 +290,8 @@ pub(crate) struct LogEval<R> {
     pub g3: R,
     /// ∂g/∂(Davies factor) at fixed pH.
     pub g_af: R,
-    /// dI/dpH at fixed activity coefficients, mol/L per pH.
+    /// dI/dpH at fixed activity coefficients, mol/L per pH (Davies mode; in ideal mode, where
+    /// nothing reads it, only H⁺ and OH⁻ are counted).
     pub ionic_x: R,
     /// ∂I/∂(Davies factor) at fixed pH, mol/L.
     pub ionic_af: R,
@@ -410,18 +411,17 @@ impl<R: Real> View<'_, R> {
             var_sum += total * mo.var;
             if z0 <= 0 {
                 let m = mo.mean - R::from_i32(z0);
-                let cov = two * m * mo.var + mo.mu3;
                 n += total * m;
                 n1_sum += total * mo.var;
                 n2_sum += total * mo.mu3;
                 n3_sum += total * (mo.mu4 - three * mo.var * mo.var);
                 ionic2 += total * (m * m + mo.var);
+                // The ionic strength's derivatives serve the Davies step only.
                 if davies {
+                    let cov = two * m * mo.var + mo.mu3;
                     na_sum += total * cov;
                     ionic2_x += total * cov;
                     ionic2_af += total * (four * m * m * mo.var + four * m * mo.mu3 + mo.mu4 - mo.var * mo.var);
-                } else {
-                    ionic2_x += total * cov;
                 }
                 continue;
             }
