@@ -455,13 +455,13 @@ impl<R: Real> View<'_, R> {
         for (c, k) in self.components.iter().zip(ka) {
             let steps = c.system.step_count();
             let z0 = c.system.charge_of_form(0);
-            // The form amounts as an array only where they are summed form by form (a system
-            // with a positive form) or computed by approximate exponentials (`fast-math`).
+            // The form amounts as an array only where they come from approximate exponentials
+            // (`fast-math`) or are summed form by form (a system with a positive form, below).
             let approximate_exp = cfg!(feature = "fast-math") && R::RELATIVE_PRECISION > 1e-10;
-            let forms = (z0 > 0 || approximate_exp).then(|| form_weights(c, k, (inv_e, big_g, inv_g), (x, af)));
-            let mo = match &forms {
-                Some(d) => moments_closed(d, steps),
-                None => step_moments(c, k, (inv_e, big_g, inv_g)),
+            let mo = if approximate_exp {
+                moments_closed(&form_weights(c, k, (inv_e, big_g, inv_g), (x, af)), steps)
+            } else {
+                step_moments(c, k, (inv_e, big_g, inv_g))
             };
             let total = c.total_mol_per_l;
             var_sum += total * mo.var;
@@ -482,7 +482,7 @@ impl<R: Real> View<'_, R> {
                 continue;
             }
             // A system with a positively charged form: form by form.
-            let Some(d) = forms else { continue };
+            let d = form_weights(c, k, (inv_e, big_g, inv_g), (x, af));
             let nbar = mo.mean;
             let z0r = R::from_i32(z0);
             // n̄·(n̄ − 2·z0) + μ2 = E[j·(j − 2·z0)].
