@@ -733,13 +733,17 @@ impl<R: Real> View<'_, R> {
             if !negative(d) {
                 break;
             }
-            // Eliminate dφ = −(r + C·dx)/D: the pH equation becomes G + G′·dx = 0.
-            let big_g = e.g - e.g_af * r / d;
-            let big_g1 = e.g1 - e.g_af * c / d;
+            // Eliminate dφ = −(r + C·dx)/D: the pH equation becomes G + G′·dx = 0. (Reciprocals
+            // of D and G′ once each: every division waits for the one before it, so the step
+            // below holds two in a row instead of five.)
+            let inv_d = R::ONE / d;
+            let big_g = e.g - e.g_af * r * inv_d;
+            let big_g1 = e.g1 - e.g_af * c * inv_d;
             if !negative(big_g1) {
                 break;
             }
-            let newton = -big_g / big_g1;
+            let inv_g1 = R::ONE / big_g1;
+            let newton = -big_g * inv_g1;
             // Bracket: in ideal mode the sign of g is the sign of the charge excess (the nested
             // solve trusts it the same way). In Davies mode G corrects the activity
             // coefficients to first order only, so its sign is trusted only where that
@@ -754,7 +758,7 @@ impl<R: Real> View<'_, R> {
             }
             // Halley's correction: t = G·g″/(2·G′²). For t ≤ ½ it damps (t < 0) or lengthens
             // the step moderately; beyond, plain Newton.
-            let t = big_g * e.g2 / (R::from_f64(2.0) * big_g1 * big_g1);
+            let t = half * big_g * e.g2 * inv_g1 * inv_g1;
             // Near the root, Householder's third-order step (quartic convergence, uses g‴).
             let cube = big_g1 * big_g1 * big_g1;
             let six = R::from_f64(6.0);
@@ -806,7 +810,7 @@ impl<R: Real> View<'_, R> {
             // equations (second order: with both moves at most FINAL_DAVIES_STEP_PH its error
             // is of the order of their square, about 1e-12 pH); the φ elimination is first
             // order, so the Householder allowance does not apply.
-            let d_af_final = if davies { -(r + c * step) / d } else { R::ZERO };
+            let d_af_final = if davies { -(r + c * step) * inv_d } else { R::ZERO };
             let davies_final = R::from_f64(if approximate_exp { 0.0 } else { FINAL_DAVIES_STEP_PH }).max(tol);
             // Only where the step is Newton's to within a tenth (|t| ≤ 0.1): a Halley step
             // damped by a large negative t is short however far the root is.
@@ -864,7 +868,7 @@ impl<R: Real> View<'_, R> {
                 next = (lo + hi) * half;
             }
             if davies {
-                let d_af = -(r + c * (next - x)) / d;
+                let d_af = -(r + c * (next - x)) * inv_d;
                 af = (af + d_af).max(R::ZERO);
             }
             x = next;
