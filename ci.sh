@@ -43,6 +43,7 @@ do_fmt() {
     (cd tools/no-panic && cargo fmt -- --check)
     (cd examples/board && cargo fmt -- --check)
     (cd hil-tests && cargo fmt -- --check)
+    (cd tools/solve-timing && cargo fmt -- --check)
 }
 
 do_clippy() {
@@ -52,6 +53,8 @@ do_clippy() {
     done
     step "clippy workspace"
     cargo clippy --workspace --all-targets -- -D warnings
+    step "clippy tools/solve-timing"
+    (cd tools/solve-timing && cargo clippy --release -- -D warnings)
     step "clippy phdose-link (thumbv7em-none-eabihf)"
     ensure_targets
     cargo clippy -p phdose-link --target thumbv7em-none-eabihf -- -D warnings
