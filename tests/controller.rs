@@ -447,6 +447,52 @@ fn a_refused_configuration_never_doses() {
     }
 }
 
+/// A board that switched its outputs off between two steps (a refused frame) says so; the next
+/// step counts the last commands only for the time they ran: the law's tank model advances with
+/// that share of them, the earliest switch-off counts, and one at the interval's end changes
+/// nothing.
+#[test]
+fn outputs_forced_off_count_the_last_commands_for_the_time_they_ran() {
+    let skid = example::plating_rinse();
+    let mut rig = Rig::new(&skid);
+    let outs = rig.run(600.0, ModeRequest::Auto);
+    let last = outs.last().unwrap();
+    assert!(last.dosing_enabled && last.delivered_l_per_h[0] > 0.0, "{last:?}");
+    let mut inputs = rig.inputs(ModeRequest::Auto);
+    inputs.dt_s = 2.0 * TICK_S;
+
+    let mut plain = rig.c.clone();
+    let plain_out = plain.step(&inputs);
+    // Switched off at the end of the interval: the commands ran all of it.
+    let mut at_end = rig.c.clone();
+    at_end.outputs_forced_off(2.0 * TICK_S);
+    assert_eq!(at_end.step(&inputs), plain_out);
+    assert_eq!(at_end, plain);
+
+    // Switched off one tick into a two-tick gap (told twice; the earlier time counts): the tank
+    // model advances with half of each command over the gap.
+    let mut half = rig.c.clone();
+    half.outputs_forced_off(TICK_S);
+    half.outputs_forced_off(1.5 * TICK_S);
+    half.step(&inputs);
+    let mut expected = *rig.c.law().adaptation();
+    let q = last.delivered_l_per_h.map(|q| q * 0.5);
+    expected.advance_tank(&rig.c.law().settings().adapt, 2.0 * TICK_S, rig.flow_l_per_h, q);
+    assert_eq!(half.law().adaptation().fractions(), expected.fractions());
+    let plain_caustic = plain.law().adaptation().fractions()[0];
+    assert!(half.law().adaptation().fractions()[0] < plain_caustic, "less caustic than without the switch-off");
+
+    // Not finite or negative: the commands did not run at all.
+    for bad in [f64::NAN, -1.0] {
+        let mut none = rig.c.clone();
+        none.outputs_forced_off(bad);
+        none.step(&inputs);
+        let mut expected = *rig.c.law().adaptation();
+        expected.advance_tank(&rig.c.law().settings().adapt, 2.0 * TICK_S, rig.flow_l_per_h, [0.0; 2]);
+        assert_eq!(none.law().adaptation().fractions(), expected.fractions(), "{bad}");
+    }
+}
+
 #[test]
 fn memory_of_the_controller_and_its_settings() {
     let c = std::mem::size_of::<Controller<f32, MODEL_SYSTEMS>>();

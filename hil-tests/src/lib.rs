@@ -535,6 +535,10 @@ impl Lockstep {
             ToHost::Reject(r) => r,
             other => return Err(HilError::Unexpected(format!("expected a reject, got {other:?}"))),
         };
+        // The host's copy is told what the board's controller is told.
+        if let Some(h) = self.host.as_mut() {
+            h.outputs_forced_off(self.tick_s);
+        }
         self.rig.sense()?;
         self.tick += 1;
         let flows = self.pump_flows(&r.pins);

@@ -206,6 +206,9 @@ pub struct Controller<R: Real, const N: usize> {
     design_flow_l_per_h: R,
     design_temperature: Celsius<R>,
     delivered_l_per_h: [R; 2],
+    /// Outputs switched off outside `step` this long after the last step, s (see
+    /// [`Controller::outputs_forced_off`]).
+    forced_off_after_s: Option<R>,
     mismatch_s: R,
     last_residual_ph: Option<R>,
     /// Per pump (caustic, acid): how long it has delivered nothing while dosing, s.
@@ -249,11 +252,26 @@ impl<R: Real, const N: usize> Controller<R, N> {
             design_flow_l_per_h: config.design_flow_l_per_h,
             design_temperature,
             delivered_l_per_h: [R::ZERO; 2],
+            forced_off_after_s: None,
             mismatch_s: R::ZERO,
             last_residual_ph: None,
             off_s: [R::ZERO; 2],
             last_ph: None,
         })
+    }
+
+    /// Tells the controller that every output was switched off outside [`Controller::step`],
+    /// `after_s` seconds (0 or more) after the last step: for instance a board that refused a
+    /// frame and turned its pumps off at once. The next step then tells the control law that the
+    /// last commands ran for that long only, not for the whole interval (the law's tank model
+    /// would otherwise count reagent that never came, and its adaptation learn from it). Called
+    /// more than once before a step, the earliest time counts; a value that is not finite or is
+    /// negative counts as 0. The dose ledgers are not changed: they book each new command for
+    /// the interval before it, which over a gap is more than was delivered (the overdose
+    /// guard's safe side).
+    pub fn outputs_forced_off(&mut self, after_s: R) {
+        let after = if after_s.is_finite() { after_s.max(R::ZERO) } else { R::ZERO };
+        self.forced_off_after_s = Some(self.forced_off_after_s.map_or(after, |earlier| earlier.min(after)));
     }
 
     /// The supervisor's state.
@@ -291,6 +309,15 @@ impl<R: Real, const N: usize> Controller<R, N> {
             dt.min(R::from_f64(crate::probe::monitor::MAX_TICK_S))
         } else {
             R::ZERO
+        };
+        // What the pumps delivered over the interval that ends now: the last commands, for the
+        // share of the interval before any forced switch-off.
+        let ran_l_per_h = match self.forced_off_after_s.take() {
+            Some(after) => {
+                let share = if probe_dt > R::ZERO { (after / probe_dt).max(R::ZERO).min(R::ONE) } else { R::ZERO };
+                self.delivered_l_per_h.map(|q| q * share)
+            }
+            None => self.delivered_l_per_h,
         };
         let mut readings: Vec<Reading<R>, MAX_PROBES> = Vec::new();
         for (probe, mv) in self.probes.iter_mut().zip(inputs.probe_mv) {
@@ -357,7 +384,7 @@ impl<R: Real, const N: usize> Controller<R, N> {
         let sp = self.law.settings().setpoint_ph;
         let (margin, off_limit) = (self.interlocks.runaway_margin_ph, self.interlocks.runaway_off_s);
         for ((off_s, delivered), (channel, up)) in
-            self.off_s.iter_mut().zip(self.delivered_l_per_h).zip(self.channels.iter().zip([R::ONE, -R::ONE]))
+            self.off_s.iter_mut().zip(ran_l_per_h).zip(self.channels.iter().zip([R::ONE, -R::ONE]))
         {
             if was_dosing && channel.is_some() && delivered <= R::ZERO {
                 *off_s += probe_dt;
@@ -388,7 +415,7 @@ impl<R: Real, const N: usize> Controller<R, N> {
             ph: v.ph.unwrap_or(R::from_f64(f64::NAN)),
             temperature,
             influent_flow_l_per_h: if no_flow { R::ZERO } else { flow },
-            delivered_l_per_h: self.delivered_l_per_h,
+            delivered_l_per_h: ran_l_per_h,
             ph_trusted: trusted,
             mode,
         });

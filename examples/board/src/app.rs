@@ -12,8 +12,10 @@
 //!   tick, which the controller's watchdog trips on), `Controller::step`, the outputs driven,
 //!   an [`ActuatorFrame`] back with the pins as driven.
 //! - **Anything refused** (broken framing, CRC, kind, length, field, a tick not after the last,
-//!   a configuration after the first tick): every output off at once, a [`Reject`] back. The
-//!   next good frame steps the controller again, with the gap counted in its elapsed time.
+//!   a configuration after the first tick): every output off at once, a [`Reject`] back, and
+//!   the controller told so (`Controller::outputs_forced_off`, one tick after its last step).
+//!   The next good frame steps the controller again, with the gap counted in its elapsed time
+//!   and the last commands counted for the one tick they ran.
 //! - **A configuration before the first tick** replaces the blob and the boot runs again.
 //! - **End of run**: every output off, then [`Node::serve`] returns.
 //!
@@ -221,8 +223,13 @@ impl Node {
 
     fn reject<O: Apply>(&mut self, code: RejectCode, detail: u32, outputs: &mut O) -> ToHost {
         self.rejected = self.rejected.saturating_add(1);
-        // A tick without trusted readings doses nothing: off at once, the alarm as it was.
+        // A tick without trusted readings doses nothing: off at once, the alarm as it was. The
+        // refused frame came in place of a tick's, one tick after the last step: the controller's
+        // next step counts the last commands for that long, not for the whole gap.
         self.drive = Drive::off(self.drive.alarm);
+        if let Some(c) = self.controller.as_mut() {
+            c.outputs_forced_off(self.tick_s);
+        }
         let pins = outputs.apply(&self.drive);
         ToHost::Reject(Reject { code, detail, rejected: self.rejected, pins })
     }

@@ -222,6 +222,7 @@ fn controller<R: Real>() -> Option<()> {
     let report = boot::check::<R>(black_box(&skid));
     let config = build::controller_config::<R>(&skid).ok()?;
     let mut c = Controller::new(config, report.allowed()).ok()?;
+    c.outputs_forced_off(r::<R>(2.5));
     let out = c.step(&black_box(TickInputs {
         dt_s: r::<R>(5.0),
         probe_mv: [r::<R>(10.0), r::<R>(12.0), r::<R>(f64::NAN)],
