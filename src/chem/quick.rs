@@ -180,7 +180,7 @@ fn moments_closed<R: Real>(d: &[R; MAX_STEPS + 1], n: usize) -> Moments<R> {
 }
 
 /// [`moments_closed`] of two forms with amounts `d0`, `d1`.
-#[inline(always)]
+#[inline]
 fn moments_of_2<R: Real>(d0: R, d1: R) -> Moments<R> {
     let three = R::from_f64(3.0);
     let inv_sum = R::ONE / (d0 + d1);
@@ -190,7 +190,7 @@ fn moments_of_2<R: Real>(d0: R, d1: R) -> Moments<R> {
 }
 
 /// [`moments_closed`] of three forms.
-#[inline(always)]
+#[inline]
 fn moments_of_3<R: Real>(d0: R, d1: R, d2: R) -> Moments<R> {
     let two = R::from_f64(2.0);
     let inv_sum = R::ONE / (d0 + d1 + d2);
@@ -207,7 +207,7 @@ fn moments_of_3<R: Real>(d0: R, d1: R, d2: R) -> Moments<R> {
 }
 
 /// [`moments_closed`] of four forms.
-#[inline(always)]
+#[inline]
 fn moments_of_4<R: Real>(d0: R, d1: R, d2: R, d3: R) -> Moments<R> {
     let two = R::from_f64(2.0);
     let three = R::from_f64(3.0);
@@ -232,7 +232,7 @@ fn moments_of_4<R: Real>(d0: R, d1: R, d2: R, d3: R) -> Moments<R> {
 /// is written and read back, which costs a store-forwarding stall per component where a
 /// compiler moves it through memory in pieces (measured: a build with one codegen unit
 /// spent 45 % longer per solve on it).
-#[inline(always)]
+#[inline]
 fn step_moments<R: Real>(c: &Component<R>, ka: &[R; MAX_STEPS], (inv_h, big_g, inv_g): (R, R, R)) -> Moments<R> {
     let cap = ratio_cap::<R>();
     let z0 = c.system.charge_of_form(0);
