@@ -94,6 +94,12 @@ fn ratio_cap<R: Real>() -> R {
     R::from_f64(if R::RELATIVE_PRECISION > 1e-10 { 1e12 } else { 1e30 })
 }
 
+/// `true` where `R`'s exponentials are approximations (`f32` with `fast-math`: micromath, about
+/// 2e-3 relative, with jumps).
+fn approximate_exp<R: Real>() -> bool {
+    cfg!(feature = "fast-math") && R::RELATIVE_PRECISION > 1e-10
+}
+
 /// `base`^`exponent` by binary powering (at most 32 squarings).
 fn pow_int<R: Real>(base: R, exponent: i32) -> R {
     let mut e = exponent.unsigned_abs();
@@ -122,7 +128,7 @@ fn form_weights<R: Real>(
     (inv_h, big_g, inv_g): (R, R, R),
     (x, af): (R, R),
 ) -> [R; MAX_STEPS + 1] {
-    let approximate_exp = cfg!(feature = "fast-math") && R::RELATIVE_PRECISION > 1e-10;
+    let approximate_exp = approximate_exp::<R>();
     let n = c.system.step_count();
     let cap = ratio_cap::<R>();
     let z0 = c.system.charge_of_form(0);
@@ -430,7 +436,7 @@ impl<R: Real> View<'_, R> {
         };
         // With `fast-math` (approximate f32 exponentials), one exponential each, as in the
         // nested solve, instead of products of approximations.
-        let (h, oh) = if cfg!(feature = "fast-math") && R::RELATIVE_PRECISION > 1e-10 {
+        let (h, oh) = if approximate_exp::<R>() {
             ((af - x).exp10(), (x - self.pkw + af).exp10())
         } else {
             (e * big_g, self.kw * inv_e * big_g)
@@ -457,8 +463,7 @@ impl<R: Real> View<'_, R> {
             let z0 = c.system.charge_of_form(0);
             // The form amounts as an array only where they come from approximate exponentials
             // (`fast-math`) or are summed form by form (a system with a positive form, below).
-            let approximate_exp = cfg!(feature = "fast-math") && R::RELATIVE_PRECISION > 1e-10;
-            let mo = if approximate_exp {
+            let mo = if approximate_exp::<R>() {
                 moments_closed(&form_weights(c, k, (inv_e, big_g, inv_g), (x, af)), steps)
             } else {
                 step_moments(c, k, (inv_e, big_g, inv_g))
@@ -679,7 +684,7 @@ impl<R: Real> View<'_, R> {
     /// correction on the pH equation.
     pub(crate) fn quick_solve(&self, start: R, ionic: R, limit: u32) -> Quick<R> {
         let davies = self.davies;
-        let approximate_exp = cfg!(feature = "fast-math") && R::RELATIVE_PRECISION > 1e-10;
+        let approximate_exp = approximate_exp::<R>();
         let a = self.debye_huckel_a;
         let max_ionic = R::from_f64(activity::DAVIES_MAX_IONIC_STRENGTH);
         let clamp_i = |i: R| clamp(i, max_ionic);
