@@ -310,17 +310,21 @@ fn moments<R: Real>(d: &[R; MAX_STEPS + 1], n: usize) -> Moments<R> {
 fn ln_ratio<R: Real>(p: R, n: R) -> R {
     let u = (p - n) / (p + n);
     if u.abs() <= R::from_f64(0.1) {
-        // The coefficients 1/(2k + 1) as constants: no division. f32 stops after u⁷/7 (the next
-        // term is below 1.2e-9 of the sum, under f32's rounding).
-        let terms = if R::RELATIVE_PRECISION > 1e-10 { 4 } else { 8 };
-        let u2 = u * u;
-        let mut term = u;
-        let mut sum = R::ZERO;
-        for k in 0..terms {
-            sum += term * R::from_f64(1.0 / f64::from(2 * k + 1));
-            term *= u2;
-        }
-        R::from_f64(2.0) * sum
+        // The coefficients 1/(2k + 1) as constants: no division; the polynomial in w = u² by
+        // Estrin's scheme (pairs, then pairs of pairs: four multiplications deep instead of
+        // eight in a row). f32 stops after u⁷/7 (the next term is below 1.2e-9 of the sum,
+        // under f32's rounding).
+        let c = |k: u32| R::from_f64(1.0 / f64::from(2 * k + 1));
+        let w = u * u;
+        let w2 = w * w;
+        let low = (R::ONE + c(1) * w) + w2 * (c(2) + c(3) * w);
+        let sum = if R::RELATIVE_PRECISION > 1e-10 {
+            low
+        } else {
+            let high = (c(4) + c(5) * w) + w2 * (c(6) + c(7) * w);
+            low + (w2 * w2) * high
+        };
+        R::from_f64(2.0) * u * sum
     } else {
         (p / n).ln()
     }
@@ -529,8 +533,8 @@ impl<R: Real> View<'_, R> {
         n3 += ln10_3 * n3_sum;
         na += ln10 * na_sum;
         let half = R::from_f64(0.5);
-        let (rp, rn) = (p1 / p, n1 / n);
         let (inv_p, inv_n) = (R::ONE / p, R::ONE / n);
+        let (rp, rn) = (p1 * inv_p, n1 * inv_n);
         LogEval {
             eval: Eval {
                 water: h + oh,
