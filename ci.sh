@@ -14,6 +14,9 @@
 #   ./ci.sh hil      the firmware in QEMU in lockstep with the plant simulator (hil-tests/); installs
 #                    qemu-system-arm with apt-get when it is missing
 #   ./ci.sh test     unit, integration, property, reference and CLI tests
+#   ./ci.sh soak     long runs, not part of `all` (about 25 min on 2 cores): the property and round-trip
+#                    tests with SOAK_CASES cases per property (default 1000000) for every feature set,
+#                    then the solver's fuzz targets for SOAK_FUZZ_SECONDS each (default 600)
 set -euo pipefail
 cd "$(dirname "$0")"
 export CARGO_TERM_COLOR="${CARGO_TERM_COLOR:-never}"
@@ -154,6 +157,20 @@ do_test() {
     cargo test -p phdose-link
 }
 
+# What a random seed of the short runs finds only rarely (a fast-math defect once showed with one seed
+# of `./ci.sh test`): many cases per property, release build, every feature set; then the two fuzz
+# targets that drive the pH solver.
+do_soak() {
+    local cases="${SOAK_CASES:-1000000}"
+    for f in "${CORE_FEATURES[@]}"; do
+        step "soak: properties and dose round trip, $cases cases each, features=[$f]"
+        PHDOSE_PROPTEST_CASES="$cases" cargo test -p phdose --release --no-default-features --features "$f" \
+            --test properties --test dose_roundtrip
+    done
+    step "soak: fuzz the solver"
+    bash fuzz/smoke.sh "${SOAK_FUZZ_SECONDS:-600}" differential solve_composition
+}
+
 case "${1:-all}" in
     fmt) do_fmt ;;
     clippy) do_clippy ;;
@@ -165,6 +182,7 @@ case "${1:-all}" in
     firmware) do_firmware ;;
     hil) do_hil ;;
     test) do_test ;;
+    soak) do_soak ;;
     all)
         do_fmt
         do_clippy
@@ -177,7 +195,7 @@ case "${1:-all}" in
         do_test
         ;;
     *)
-        echo "usage: $0 [all|fmt|clippy|thumb|nopanic|doc|bench|fuzz|firmware|hil|test]" >&2
+        echo "usage: $0 [all|fmt|clippy|thumb|nopanic|doc|bench|fuzz|firmware|hil|test|soak]" >&2
         exit 2
         ;;
 esac
