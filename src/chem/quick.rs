@@ -989,6 +989,25 @@ mod tests {
     }
 
     #[test]
+    fn log_ratio_series_matches_the_logarithm() {
+        // Both sides of the series' switch (|u| = 0.1) and deep inside it. Reference: std's
+        // ln_1p((p − n)/n) in f64 (p − n exact here, so no rounding of a ratio near 1 spoils it);
+        // bounds a few units in the last place.
+        for k in -120..=120 {
+            let u = f64::from(k) * 1e-3;
+            let (p, n) = (3e-4 * (1.0 + u), 3e-4 * (1.0 - u));
+            let want = ((p - n) / n).ln_1p();
+            let got = ln_ratio(p, n);
+            assert!((got - want).abs() <= 1e-15 * want.abs(), "u = {u}: {got:e} against {want:e}");
+            #[allow(clippy::cast_possible_truncation)]
+            let (p32, n32) = (p as f32, n as f32);
+            let want = ((f64::from(p32) - f64::from(n32)) / f64::from(n32)).ln_1p();
+            let got32 = f64::from(ln_ratio(p32, n32));
+            assert!((got32 - want).abs() <= 4e-7 * want.abs(), "f32 u = {u}: {got32:e} against {want:e}");
+        }
+    }
+
+    #[test]
     fn advancing_powers_stays_on_the_exponentials() {
         // Ten small moves (the quick path's most), then one past the series' range.
         let (mut x, mut af) = (6.3_f64, 0.11_f64);
