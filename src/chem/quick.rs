@@ -100,7 +100,7 @@ fn approximate_exp<R: Real>() -> bool {
     cfg!(feature = "fast-math") && R::RELATIVE_PRECISION > 1e-10
 }
 
-/// Largest pH (or Davies-factor) move, in pH units, after which the quick path updates 10^∓pH
+/// Largest pH (and Davies-factor) move, in pH units, up to which the quick path updates 10^∓pH
 /// (10^±φ) by a short series instead of exponentials and a reciprocal (see [`Powers::advance`]).
 const SERIES_STEP_PH: f64 = 0.05;
 
@@ -127,18 +127,19 @@ impl<R: Real> Powers<R> {
         Powers { e, inv_e: R::ONE / e, big_g, inv_g }
     }
 
-    /// The powers at pH `x + dx` and Davies factor `af` (the previous one `af_before`), from
-    /// these at `x`: where both moves are within [`SERIES_STEP_PH`], each pair is multiplied by
-    /// 10^∓move from one series (10^y = E + O and 10^−y = E − O with E and O the even and odd
-    /// parts of e^(y·ln10), truncated below 1e-18 relative in f64 and 1e-9 in f32): no
+    /// The powers at pH `to` and Davies factor `af` from these at pH `from` and `af_before`:
+    /// where both moves are within [`SERIES_STEP_PH`], each pair is multiplied by 10^∓move from
+    /// one series (10^y = E + O and 10^−y = E − O with E and O the even and odd parts of
+    /// e^(y·ln10), the first term left out about 1e-20 relative in f64 and 3e-9 in f32): no
     /// exponential, no division. Otherwise, and with approximate exponentials (`fast-math`),
-    /// [`Powers::at`]. Each series update rounds to a few units in the last place; the quick
-    /// path makes at most [`QUICK_ITERATIONS`] of them (a drift below 1e-14 relative in f64).
-    fn advance(self, x: R, dx: R, af_before: R, af: R) -> Self {
+    /// [`Powers::at`] at exactly `to`. Each series update rounds to a few units in the last
+    /// place; the quick path makes at most [`QUICK_ITERATIONS`] of them (a drift below 1e-14
+    /// relative in f64, a unit test).
+    fn advance(self, (from, to): (R, R), (af_before, af): (R, R)) -> Self {
         let limit = R::from_f64(SERIES_STEP_PH);
-        let da = af - af_before;
+        let (dx, da) = (to - from, af - af_before);
         if approximate_exp::<R>() || !(dx.abs() <= limit && da.abs() <= limit) {
-            return Self::at(x + dx, af);
+            return Self::at(to, af);
         }
         let (up, down) = pow10_pair(dx);
         let (e, inv_e) = (self.e * down, self.inv_e * up);
@@ -155,8 +156,8 @@ impl<R: Real> Powers<R> {
 }
 
 /// (10^y, 10^−y) for |y| ≤ [`SERIES_STEP_PH`] from the even and odd parts of the exponential
-/// series in t = y·ln10 (|t| ≤ 0.116): to t¹¹ in f64 (the first term left out is below 1e-20),
-/// to t⁵ in f32 (below 3e-9). Horner in t², the two parts side by side.
+/// series in t = y·ln10 (|t| ≤ 0.116): to t¹¹ in f64 (the first term left out, t¹²/12!, is at
+/// most 1.2e-20), to t⁵ in f32 (t⁶/720: at most 3.4e-9). Horner in t², the two parts side by side.
 fn pow10_pair<R: Real>(y: R) -> (R, R) {
     let t = y * R::LN_10;
     let w = t * t;
@@ -952,7 +953,7 @@ impl<R: Real> View<'_, R> {
                 let d_af = -(r + c * (next - x)) * inv_d;
                 af = (af + d_af).max(R::ZERO);
             }
-            powers = powers.advance(x, next - x, af_before, af);
+            powers = powers.advance((x, next), (af_before, af));
             x = next;
         }
         Quick::Continue(spent, x, last_ionic)
@@ -1015,7 +1016,7 @@ mod tests {
         let moves = [0.049, -0.031, 0.002, 1e-7, -0.05, 0.0, 0.013, -0.0004, 0.04, -0.02, 0.7];
         for (k, dx) in moves.into_iter().enumerate() {
             let af_next = if k == 5 { 0.0 } else { af + 0.1 * dx };
-            p = p.advance(x, dx, af, af_next);
+            p = p.advance((x, x + dx), (af, af_next));
             x += dx;
             af = af_next;
             for (got, want) in
